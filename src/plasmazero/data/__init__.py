@@ -1,0 +1,1 @@
+"""Data layer: reading and validating the files users edit (no physics here)."""

@@ -1,0 +1,1 @@
+"""Interfaces layer: command line, result files and plots."""

@@ -1,0 +1,1 @@
+"""Numerics layer: the compiled stiff integrator for species balances."""

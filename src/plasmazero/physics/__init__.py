@@ -1,0 +1,1 @@
+"""Physics layer: electron kinetics, rate laws and thermochemistry (SI units inside)."""

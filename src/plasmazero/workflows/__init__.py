@@ -1,0 +1,1 @@
+"""Workflows layer: discharge scenarios, scans and analysis built on physics and numerics."""
