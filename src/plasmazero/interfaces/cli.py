@@ -22,6 +22,7 @@ from plasmazero.data.errors import InputError
 #: command name -> one-line help; the module is ``cmd_<name>``.
 COMMANDS = {
     "swarm": "electron swarm parameters and rate coefficients versus E/N",
+    "check": "validate a mechanism file and summarise it",
 }
 
 
