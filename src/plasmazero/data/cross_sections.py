@@ -33,7 +33,7 @@ from pathlib import Path
 import numpy as np
 
 from .errors import InputError, format_problem
-from .yamlio import line_of, read_yaml
+from .yamlio import is_finite_number, line_of, read_yaml
 
 KINDS = ("momentum_transfer", "total_momentum_transfer", "excitation", "ionization", "attachment")
 PROVENANCE = ("taken", "recalled", "fitted", "adjusted", "invented")
@@ -86,15 +86,15 @@ class CrossSectionSet:
 
 
 def _finite_number(value):
-    return isinstance(value, (int, float)) and not isinstance(value, bool) and math.isfinite(value)
+    return is_finite_number(value)
 
 
-def _read_table(path, base, pid, problems, file):
+def _read_table(path, base, pid, problems, file, line=None):
     table_path = (base / path) if not Path(path).is_absolute() else Path(path)
     try:
         text = table_path.read_text(encoding="utf-8")
-    except OSError:
-        problems.append(format_problem(file, pid, f"data_file {path!r} not found or unreadable"))
+    except (OSError, UnicodeDecodeError):
+        problems.append(format_problem(file, pid, f"data_file {path!r} not found or unreadable", line))
         return None
     rows = []
     for no, raw in enumerate(text.splitlines(), 1):
@@ -218,14 +218,15 @@ def load_cross_sections(path):
                 problems.append(format_problem(path, pid, "weight_ratio must be a positive number", line_of(entry, "weight_ratio")))
                 continue
         prov = entry.get("provenance", file_prov)
-        if prov and prov not in PROVENANCE:
+        if "provenance" in entry and prov not in PROVENANCE:  # a bad file default is reported once
             problems.append(format_problem(path, pid, f"provenance must be one of {', '.join(PROVENANCE)}", line_of(entry, "provenance")))
         has_data, has_file = "data" in entry, "data_file" in entry
         if has_data == has_file:
             problems.append(format_problem(path, pid, "give exactly one of data or data_file", line))
             continue
         if has_file:
-            rows = _read_table(str(entry["data_file"]), path.parent, pid, problems, path)
+            rows = _read_table(str(entry["data_file"]), path.parent, pid, problems, path,
+                               line_of(entry, "data_file"))
             if rows is None:
                 continue
         else:
@@ -245,7 +246,7 @@ def load_cross_sections(path):
         ))
     n_mt = sum(p.kind in ("momentum_transfer", "total_momentum_transfer") for p in processes)
     if entries and not problems and n_mt != 1:
-        problems.append(format_problem(path, "processes", f"needs exactly one momentum_transfer or total_momentum_transfer process, found {n_mt}"))
+        problems.append(format_problem(path, "processes", f"needs exactly one momentum_transfer or total_momentum_transfer process, found {n_mt}", line_of(doc, "processes")))
     if problems:
         raise InputError(problems)
     procs = tuple(processes)

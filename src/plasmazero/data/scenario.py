@@ -56,7 +56,7 @@ import math
 from pathlib import Path
 
 from .errors import InputError, format_problem
-from .yamlio import line_of, read_yaml
+from .yamlio import is_finite_number, line_of, read_yaml
 
 #: Standard conditions of sccm and slm: 273.15 K and 101325 Pa (the usual mass-flow
 #: controller convention; some vendors use 20 C or 25 C, which the user must convert).
@@ -110,7 +110,7 @@ _SURFACE_LOSS_KEYS = {"species", "sticking", "products"}
 
 
 def _is_number(value):
-    return isinstance(value, (int, float)) and not isinstance(value, bool) and math.isfinite(value)
+    return is_finite_number(value)
 
 
 def _check(doc, schema, path, file, problems):

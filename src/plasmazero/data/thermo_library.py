@@ -35,7 +35,7 @@ import numpy as np
 
 from .errors import InputError, format_problem
 from .shipped import shipped_root
-from .yamlio import line_of, read_yaml
+from .yamlio import is_finite_number, line_of, read_yaml
 
 PROVENANCE = ("taken", "recalled", "fitted")
 FILE_KEYS = {"title", "source", "provenance", "note", "species"}
@@ -72,7 +72,7 @@ class ThermoRecord:
 
 
 def _finite_number(value):
-    return isinstance(value, (int, float)) and not isinstance(value, bool) and math.isfinite(value)
+    return is_finite_number(value)
 
 
 def _props(a, T):
