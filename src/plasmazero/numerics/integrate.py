@@ -1,0 +1,770 @@
+"""The compiled step loop and the public entry point :func:`integrate`.
+
+What it solves
+--------------
+The species balances of :mod:`plasmazero.numerics.kinetics` (mass action plus the
+caller's linear loss/source terms) at a fixed gas temperature, with the electrons as one
+of the species and their rate coefficients taken from an E/N table (local field
+approximation, :mod:`plasmazero.numerics.electrons`) along a field profile E/N(t) that is
+piecewise linear in time.
+
+How
+---
+* RODAS4 (:mod:`plasmazero.numerics.rosenbrock`), an L-stable Rosenbrock method of order 4
+  with an embedded order-3 error estimate and order-3 dense output; analytic Jacobian;
+  df/dt by a second-order difference quotient in E/N where the field ramps.
+* PI step-size control (:mod:`plasmazero.numerics.controller`).
+* Restarts: the run is cut into segments at the breakpoints of the field profile (its
+  times; a repeated time is a jump) and at the caller's ``breakpoints_s``. Steps land
+  exactly on every segment end; each segment starts afresh with a new starting-step
+  estimate (Hairer, Nørsett & Wanner 1993, section II.4) and a reset controller memory.
+* Tolerances: a step is accepted when the RMS norm of err_i / (atol_i + rtol |y_i|) is
+  <= 1. ``atol_m3`` may be per species; its default is
+  ``max(ATOL_FLOOR_M3, ATOL_FRACTION * sum(y0))``: 1 particle per cm^3 (1e6 m^-3), or
+  1e-20 of the initial total density when that is larger (above 1e26 m^-3). A choice of
+  this code, no source; the floor has to be far below the seed electron density, because
+  errors in the seed are amplified by the avalanche of a pulse (with 1e-12 of the total
+  density, a toy avalanche from 1e14 m^-3 came out 10 % wrong).
+* Non-negativity: a step that leaves any density below -atol_i (a significant
+  negative) is rejected and retried with at most half the step. Negative values that are
+  within the tolerance (-atol_i <= y_i < 0) are set to zero after acceptance; the
+  density so added is counted per species in ``clipped_m3`` of the result, so that the
+  (tiny, below atol per step) effect on element conservation is visible.
+* Integrated rates: the integral of every reaction rate over each accepted step (split
+  at the output times) by two-point Gauss-Legendre quadrature on the dense output. The
+  dense output is of order 3 (local error O(h^4)) and the quadrature exact for cubics, so
+  the integral over a step has a local error O(h^5): the same order as the solution
+  (global O(h^4)). The same quadrature integrates the linear terms.
+* Composition-dependent electron tables: with ``rebuild_table``, the loop watches the mole
+  fractions of the table's collision partners (fractions of the total density of all
+  species except the electrons) and returns to Python as soon as any of them drifts by
+  more than ``partner_tolerance`` (absolute, default 0.02: a 2 % absolute change of a
+  major partner changes the EEDF, and with it the rate coefficients, typically by a few
+  per cent, below the uncertainty of most cross-section sets; a choice of this code, no
+  source). Python calls ``rebuild_table(mole_fractions)`` with the current fractions of
+  all neutral species and the compiled loop continues from the same state. The check
+  follows every accepted step, so at a rebuild the drift may exceed the tolerance by what
+  one step changed.
+* Quasi-neutrality: max over the accepted steps of |sum q_i n_i| / max(positive,
+  negative charge density); states whose charged densities are below the sum of their
+  absolute tolerances are skipped.
+
+References
+----------
+Hairer, E. & Wanner, G. (1996), Solving Ordinary Differential Equations II, 2nd ed.,
+Springer, section IV.7 (RODAS). Hairer, E., Nørsett, S. P. & Wanner, G. (1993), Solving
+Ordinary Differential Equations I, 2nd ed., Springer, section II.4 (error norm, starting
+step, step-size control). Gustafsson, K., Lundh, M. & Söderlind, G. (1988), BIT 28, 270
+(PI control).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from numba import njit
+
+from .controller import error_norm, next_step_accepted, next_step_rejected
+from .electrons import ElectronTable, interpolate_table, table_arrays
+from .field import as_field, segments
+from .kinetics import (JACOBIAN, RATES, RHS, charge_imbalance, evaluate, field_at,
+                       linear_terms, net_stoichiometry)
+from .results import (BUFFER_FULL, CAUSE_ERROR, CAUSE_NEGATIVE, CAUSE_NON_FINITE,
+                      CAUSE_SINGULAR, CAUSE_TEXT, MAX_STEPS, NON_FINITE_STATE, STATUS_TEXT,
+                      STEP_TOO_SMALL, SUCCESS, TABLE_STALE, Counters, IntegrationError,
+                      KineticsResult)
+from .rosenbrock import ORDER, dense_coefficients, dense_eval, rodas4_step
+
+#: relative step in E/N of the finite-difference time derivative of f (about eps^(1/3))
+FIELD_DERIVATIVE_STEP = 1e-5
+ATOL_FLOOR_M3 = 1e6
+ATOL_FRACTION = 1e-20
+DEFAULT_MAX_STEPS = 200_000
+STEP_BUFFER = 1024
+
+# integer state slots of the compiled loop
+_I_SEG, _I_OUT, _I_STEPS, _I_ACC, _I_REJ, _I_RHS, _I_JAC, _I_LU, _I_QUAD = range(9)
+_I_STATUS, _I_WORST, _I_RESTART, _I_AFTER_REJ, _I_CAUSE, _I_FIRST, _I_REJ_NEG = range(9, 16)
+_N_I = 16
+# float state slots
+_F_T, _F_H, _F_ERR_PREV, _F_QN = range(4)
+_N_F = 4
+# options
+_O_HMAX, _O_HFIX, _O_PTOL, _O_HFIRST, _O_QN_FLOOR = range(5)
+_O_MAX_STEPS, _O_MODE, _O_RATES, _O_MONITOR = range(4)
+
+
+@njit(cache=True)
+def _rms_scaled(v, y, atol, rtol):
+    """RMS of v_i / (atol_i + rtol_i |y_i|)."""
+    acc = 0.0
+    for i in range(v.shape[0]):
+        q = v[i] / (atol[i] + rtol[i] * abs(y[i]))
+        acc += q * q
+    return (acc / max(v.shape[0], 1)) ** 0.5
+
+
+@njit(cache=True)
+def _conditions(t, table, cond, k_el, out):
+    """E/N (Td), mean energy (eV) and drift velocity (m/s) at ``t`` into ``out``."""
+    E = field_at(cond, t)
+    mean, drift = interpolate_table(table[0], table[1], table[2], table[3], table[4], E, k_el)
+    out[0] = E
+    out[1] = mean
+    out[2] = drift
+
+
+@njit(cache=True)
+def _all_finite(v):
+    for x in v.flat:
+        if not (abs(x) < math.inf):
+            return False
+    return True
+
+
+@njit(cache=True)
+def _run(y, fst, ist, stops, seg_E0, seg_slope, model, rtol, atol, opts_f, opts_i,
+         t_eval, out_t, out_y, out_R, out_L, out_cond, R_cum, L_cum, clipped,
+         partner_idx, partner_ref, heavy, charge):
+    """The step loop; returns a status (``results`` codes). All state lives in the arrays.
+
+    The loop runs until the end time, a failure, a stale electron table (``TABLE_STALE``)
+    or a full output buffer (``BUFFER_FULL``); the driver may call it again to continue.
+    Starting-step estimate, df/dt and the quadrature of the rates are written out here
+    rather than as separate kernels: every kernel that calls the rate-law kernel links and
+    compiles it again, so their number is kept at three (evaluate, rodas4_step, _run).
+    """
+    n = y.shape[0]
+    n_r = R_cum.shape[0]
+    table = model[3]
+    cond = model[4]
+    work = model[5]
+    linear = model[2]
+    f0 = np.empty(n)
+    fdt = np.empty(n)
+    ftmp = np.empty(n)
+    ynew = np.empty(n)
+    ystage = np.empty(n)
+    fstage = np.empty(n)
+    J = np.empty((n, n))
+    lu = np.empty((n, n))
+    piv = np.empty(n, dtype=np.int64)
+    U = np.empty((6, n))
+    h1 = np.empty(n)
+    h2 = np.empty(n)
+    yd = np.empty(n)
+    lq = np.empty(n)
+    k_el = np.empty(table[2].shape[1])
+    inv_sqrt3 = 1.0 / math.sqrt(3.0)
+
+    t = fst[_F_T]
+    h = fst[_F_H]
+    err_prev = fst[_F_ERR_PREV]
+    seg = ist[_I_SEG]
+    n_seg = stops.shape[0] - 1
+    n_eval = t_eval.shape[0]
+    max_steps = opts_i[_O_MAX_STEPS]
+    step_mode = opts_i[_O_MODE] == 1
+    do_rates = opts_i[_O_RATES] == 1
+    monitor = opts_i[_O_MONITOR] == 1
+    h_max = opts_f[_O_HMAX]
+    h_fixed = opts_f[_O_HFIX]
+    ptol = opts_f[_O_PTOL]
+    qn_floor = opts_f[_O_QN_FLOOR]
+    eps = 2.220446049250313e-16
+    status = SUCCESS
+    if seg < n_seg:
+        cond[1] = stops[seg]
+        cond[2] = seg_E0[seg]
+        cond[3] = seg_slope[seg]
+    while True:
+        if seg >= n_seg:
+            break
+        t_stop = stops[seg + 1]
+        if t >= t_stop - 10.0 * eps * max(abs(t), abs(t_stop)):
+            # restart: next segment of the field profile / breakpoints (a sliver shorter
+            # than 10 eps |t| before the stop is skipped: no step can resolve it)
+            if not step_mode:
+                k = ist[_I_OUT]
+                while k < n_eval and t_eval[k] <= t_stop:
+                    out_t[k] = t_eval[k]
+                    for i in range(n):
+                        out_y[k, i] = y[i]
+                        out_L[k, i] = L_cum[i]
+                    for j in range(n_r):
+                        out_R[k, j] = R_cum[j]
+                    _conditions(t_eval[k], table, cond, k_el, out_cond[k])
+                    k += 1
+                ist[_I_OUT] = k
+            t = max(t, t_stop)
+            seg += 1
+            ist[_I_RESTART] = 1
+            if seg < n_seg:
+                cond[1] = stops[seg]
+                cond[2] = seg_E0[seg]
+                cond[3] = seg_slope[seg]
+            continue
+        if ist[_I_STEPS] >= max_steps:
+            status = MAX_STEPS
+            break
+        E_now = field_at(cond, t)
+        evaluate(E_now, y, model, f0, J, JACOBIAN)
+        ist[_I_JAC] += 1
+        ist[_I_RHS] += 1
+        if not (_all_finite(f0) and _all_finite(J)):
+            status = NON_FINITE_STATE
+            ist[_I_CAUSE] = CAUSE_NON_FINITE
+            for i in range(n):
+                if not (abs(f0[i]) < math.inf):
+                    ist[_I_WORST] = i
+                    break
+            break
+        # df/dt = slope * df/d(E/N): one-sided second-order difference in E/N,
+        # (-3 f(E) + 4 f(E + d) - f(E + 2d)) / (2 d), never at E/N < 0 (e.g. Fornberg
+        # 1988, Math. Comp. 51, 699, table of one-sided weights). Its error O(d^2) keeps
+        # the order of the method visible down to ~1e-13 relative; a forward difference
+        # (error O(d)) left a floor 100 times higher in the field-ramp order test.
+        use_fdt = cond[3] != 0.0
+        if use_fdt:
+            dE = FIELD_DERIVATIVE_STEP * max(E_now, 1.0)
+            evaluate(E_now + dE, y, model, ftmp, J, RHS)
+            evaluate(E_now + 2.0 * dE, y, model, fstage, J, RHS)
+            ist[_I_RHS] += 2
+            fac = cond[3] / (2.0 * dE)
+            for i in range(n):
+                fdt[i] = (4.0 * ftmp[i] - 3.0 * f0[i] - fstage[i]) * fac
+        span = t_stop - t
+        if h_fixed > 0.0:
+            h = h_fixed
+        elif ist[_I_RESTART] == 1:
+            if ist[_I_FIRST] == 1 and opts_f[_O_HFIRST] > 0.0:
+                h = opts_f[_O_HFIRST]
+            else:
+                # starting step (Hairer, Norsett & Wanner 1993, section II.4), error order 3
+                d0 = _rms_scaled(y, y, atol, rtol)
+                d1 = _rms_scaled(f0, y, atol, rtol)
+                if d0 < 1e-5 or d1 < 1e-5:
+                    h0 = 1e-6 * span
+                else:
+                    h0 = 0.01 * d0 / d1
+                h0 = min(h0, span)
+                for i in range(n):
+                    ystage[i] = y[i] + h0 * f0[i]
+                evaluate(field_at(cond, t + h0), ystage, model, fstage, J, RHS)
+                ist[_I_RHS] += 1
+                for i in range(n):
+                    fstage[i] -= f0[i]
+                d2 = _rms_scaled(fstage, y, atol, rtol) / h0
+                big = max(d1, d2)
+                if big <= 1e-15:
+                    hh = max(1e-6 * span, h0 * 1e-3)
+                else:
+                    hh = (0.01 / big) ** (1.0 / ORDER)
+                h = min(100.0 * h0, hh, span)
+                # the JACOBIAN call above is still valid: J was not overwritten in RHS mode
+            err_prev = 1.0
+            ist[_I_AFTER_REJ] = 0
+        ist[_I_RESTART] = 0
+        ist[_I_FIRST] = 0
+        if h > h_max:
+            h = h_max
+        h_min = 10.0 * eps * abs(t) + 1e-300    # t + h_min is distinguishable from t
+        if h < h_min:
+            status = STEP_TOO_SMALL
+            break
+        failed = False
+        landing = False
+        err = 0.0
+        while True:
+            landing = False
+            if t + 1.01 * h >= t_stop:
+                h = t_stop - t
+                landing = True
+            ist[_I_STEPS] += 1
+            info = rodas4_step(t, y, h, f0, J, fdt, use_fdt, model, lu, piv, U, ystage,
+                               fstage, ynew)
+            ist[_I_LU] += 1
+            cause = 0
+            worst = 0
+            if info != 0:
+                err = math.inf
+                cause = CAUSE_SINGULAR
+                worst = info - 1
+            else:
+                ist[_I_RHS] += 5
+                err, worst = error_norm(y, ynew, U[5], atol, rtol)
+                if not (err < math.inf):
+                    cause = CAUSE_NON_FINITE
+                elif err > 1.0:
+                    cause = CAUSE_ERROR
+                if cause == 0 or cause == CAUSE_ERROR:
+                    most = 0.0
+                    for i in range(n):
+                        q = ynew[i] + atol[i]
+                        if q < 0.0 and q / atol[i] < most:
+                            most = q / atol[i]
+                            worst = i
+                            cause = CAUSE_NEGATIVE
+            ist[_I_WORST] = worst
+            if h_fixed > 0.0:
+                if cause == CAUSE_SINGULAR or cause == CAUSE_NON_FINITE:
+                    failed = True
+                    status = NON_FINITE_STATE
+                    ist[_I_CAUSE] = cause
+                break
+            if cause == 0:
+                break
+            ist[_I_REJ] += 1
+            ist[_I_CAUSE] = cause
+            if cause == CAUSE_NEGATIVE:
+                ist[_I_REJ_NEG] += 1
+                h = min(0.5 * h, next_step_rejected(h, max(err, 1.0)))
+            else:
+                h = next_step_rejected(h, err)
+            ist[_I_AFTER_REJ] = 1
+            if h < h_min:
+                status = STEP_TOO_SMALL
+                failed = True
+                break
+            if ist[_I_STEPS] >= max_steps:
+                status = MAX_STEPS
+                failed = True
+                break
+        if failed:
+            break
+        # accepted step [t, t_new]: outputs and integrated rates on the dense output
+        t_new = t_stop if landing else t + h
+        dense_coefficients(U, h1, h2)
+        theta_a = 0.0
+        k = ist[_I_OUT]
+        while True:
+            is_out = (not step_mode) and k < n_eval and t_eval[k] <= t_new
+            th = 1.0
+            if is_out:
+                th = min(1.0, max(0.0, (t_eval[k] - t) / h))
+            if do_rates and th > theta_a:
+                # two-point Gauss-Legendre rule on [theta_a, th] (Abramowitz & Stegun
+                # 1964, Handbook of Mathematical Functions, 25.4.29)
+                half = 0.5 * (th - theta_a)
+                mid = 0.5 * (th + theta_a)
+                w = half * h
+                for node_sign in range(2):
+                    node = mid + (2 * node_sign - 1) * half * inv_sqrt3
+                    dense_eval(node, y, ynew, h1, h2, yd)
+                    evaluate(field_at(cond, t + node * h), yd, model, ftmp, J, RATES)
+                    r = work[3]
+                    for j in range(n_r):
+                        R_cum[j] += w * r[j]
+                    linear_terms(yd, linear, lq)
+                    for i in range(n):
+                        L_cum[i] += w * lq[i]
+                ist[_I_QUAD] += 2
+            theta_a = th
+            if not is_out:
+                break
+            dense_eval(th, y, ynew, h1, h2, yd)
+            out_t[k] = t_eval[k]
+            for i in range(n):
+                out_y[k, i] = yd[i] if yd[i] > 0.0 else 0.0
+                out_L[k, i] = L_cum[i]
+            for j in range(n_r):
+                out_R[k, j] = R_cum[j]
+            _conditions(t_eval[k], table, cond, k_el, out_cond[k])
+            k += 1
+        ist[_I_OUT] = k
+        for i in range(n):
+            v = ynew[i]
+            if v < 0.0:
+                clipped[i] -= v
+                v = 0.0
+            y[i] = v
+        h_used = h
+        t = t_new
+        ist[_I_ACC] += 1
+        qn = charge_imbalance(y, charge, qn_floor)
+        if qn > fst[_F_QN]:
+            fst[_F_QN] = qn
+        if h_fixed <= 0.0:
+            h = next_step_accepted(h_used, err, err_prev, ist[_I_AFTER_REJ] == 1)
+            err_prev = max(err, 1e-4)
+            ist[_I_AFTER_REJ] = 0
+        if step_mode:
+            k = ist[_I_OUT]
+            out_t[k] = t
+            for i in range(n):
+                out_y[k, i] = y[i]
+                out_L[k, i] = L_cum[i]
+            for j in range(n_r):
+                out_R[k, j] = R_cum[j]
+            _conditions(t, table, cond, k_el, out_cond[k])
+            k += 1
+            ist[_I_OUT] = k
+            if k >= out_t.shape[0]:
+                status = BUFFER_FULL
+                break
+        if monitor:
+            total = 0.0
+            for i in range(n):
+                if heavy[i]:
+                    total += y[i]
+            if total > 0.0:
+                stale = False
+                for p in range(partner_idx.shape[0]):
+                    x = y[partner_idx[p]] / total
+                    if abs(x - partner_ref[p]) > ptol:
+                        stale = True
+                if stale:
+                    status = TABLE_STALE
+                    break
+    fst[_F_T] = t
+    fst[_F_H] = h
+    fst[_F_ERR_PREV] = err_prev
+    ist[_I_SEG] = seg
+    ist[_I_STATUS] = status
+    return status
+
+
+# ----------------------------------------------------------------------------- driver
+
+
+def _vector(value, n, name, default=0.0):
+    if value is None:
+        return np.full(n, float(default))
+    v = np.asarray(value, dtype=np.float64)
+    if v.ndim == 0:
+        v = np.full(n, float(v))
+    if v.shape != (n,):
+        raise ValueError(f"{name} must be a scalar or have shape ({n},), got {v.shape}")
+    if not np.all(np.isfinite(v)):
+        raise ValueError(f"{name} must be finite")
+    return np.ascontiguousarray(v)
+
+
+def _electron_index(mech, electron_species):
+    species = tuple(mech.species)
+    if electron_species is not None:
+        if electron_species not in species:
+            raise ValueError(f"electron species {electron_species!r} is not in the mechanism")
+        return species.index(electron_species)
+    idx = getattr(mech, "electron_index", None)
+    if idx is not None and int(idx) >= 0:
+        return int(idx)
+    for name in ("e", "e-"):
+        if name in species:
+            return species.index(name)
+    return -1
+
+
+def _mole_fractions(y, species, heavy, which):
+    """Mole fractions (of the total density of the ``heavy`` species) of the ``which`` ones."""
+    total = float(np.sum(y[heavy]))
+    return {s: (float(y[i] / total) if total > 0.0 else 0.0)
+            for i, s in enumerate(species) if which[i]}
+
+
+def _check_table(table, mech):
+    if table is None:
+        return None
+    if not isinstance(table, ElectronTable):
+        raise TypeError("electron_table / rebuild_table must give a plasmazero.numerics.ElectronTable")
+    want = tuple(mech.electron_processes)
+    if table.processes and tuple(table.processes) != want:
+        raise ValueError(f"electron table processes {table.processes} differ from the "
+                         f"mechanism's electron_processes {want}")
+    if table.k_m3_s.shape[1] != len(want):
+        raise ValueError(f"electron table has {table.k_m3_s.shape[1]} columns, the mechanism "
+                         f"has {len(want)} electron processes")
+    return table
+
+
+def linear_arrays(n, loss_frequency_s=None, loss_products=None, source_m3_s=None):
+    """Validated linear-term arrays ``(nu (n,), P (n, n), S (n,))`` (see kinetics)."""
+    nu = _vector(loss_frequency_s, n, "loss_frequency_s")
+    if np.any(nu < 0.0):
+        raise ValueError("loss_frequency_s must be >= 0")
+    if loss_products is None:
+        P = np.zeros((n, n))
+    else:
+        P = np.ascontiguousarray(loss_products, dtype=np.float64)
+        if P.shape != (n, n) or not np.all(np.isfinite(P)) or np.any(P < 0.0):
+            raise ValueError(f"loss_products must be finite, >= 0 and of shape ({n}, {n})")
+    S = _vector(source_m3_s, n, "source_m3_s")
+    return nu, P, S
+
+
+def build_model(mech, T_gas_K, *, electron_table=None, loss_frequency_s=None,
+                loss_products=None, source_m3_s=None, E_N_Td=0.0):
+    """The ``model`` tuple of :mod:`plasmazero.numerics.kinetics` for a mechanism.
+
+    Used by :func:`integrate`; also lets callers evaluate the right-hand side and the
+    Jacobian at a state (``kinetics.evaluate``), e.g. for tests and diagnostics. The field
+    is the constant ``E_N_Td`` (Td) until :func:`integrate` sets its segments.
+    """
+    species = tuple(mech.species)
+    n = len(species)
+    n_r = len(tuple(mech.reactions))
+    n_p = len(tuple(mech.electron_processes))
+    table = _check_table(electron_table, mech)
+    reactant_index = np.ascontiguousarray(mech.reactant_index, dtype=np.int64)
+    net_index, net_coeff = net_stoichiometry(reactant_index,
+                                             np.asarray(mech.product_index, dtype=np.int64),
+                                             np.asarray(mech.product_coeff, dtype=np.float64))
+    mech_arrays = (reactant_index, net_index, net_coeff,
+                   np.ascontiguousarray(mech.third_body, dtype=np.int64),
+                   np.ascontiguousarray(mech.efficiencies, dtype=np.float64).reshape(-1, n),
+                   np.ascontiguousarray(mech.multiply_M, dtype=np.bool_))
+    n_tb = mech_arrays[4].shape[0]
+    linear = linear_arrays(n, loss_frequency_s, loss_products, source_m3_s)
+    cond = np.array([float(T_gas_K), 0.0, float(E_N_Td), 0.0])
+    work = (np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_p),
+            np.zeros(n_tb))
+    kernel_args = tuple(mech.kernel_args)
+    return (mech_arrays, kernel_args, linear, table_arrays(table, n_p), cond, work)
+
+
+def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None,
+              loss_frequency_s=None, loss_products=None, source_m3_s=None, t_eval_s=None,
+              breakpoints_s=(), rtol=1e-6, atol_m3=None, max_steps=DEFAULT_MAX_STEPS,
+              first_step_s=None, max_step_s=math.inf, fixed_step_s=None,
+              rebuild_table=None, partner_tolerance=0.02, integrate_rates=True,
+              electron_species=None, raise_on_failure=True):
+    """Integrate the species balances of a compiled mechanism over ``t_span_s``.
+
+    Parameters
+    ----------
+    mech : CompiledMechanism
+        Duck-typed: needs ``species``, ``charge``, ``reactions``, ``reactant_index``,
+        ``product_index``, ``product_coeff``, ``third_body``, ``efficiencies``,
+        ``multiply_M``, ``kernel_args`` and ``electron_processes`` (the shared contract);
+        ``electron_index`` is used when present.
+    y0_m3 : array (n_s,)
+        Initial densities, m^-3, >= 0.
+    t_span_s : (float, float)
+        Start and end time, s (end > start).
+    T_gas_K : float
+        Gas temperature, K (fixed).
+    field : plasmazero.numerics.FieldProfile, (times_s, E_N_Td), float or None
+        Reduced field E/N(t), Td, piecewise linear; None means E/N = 0.
+    electron_table : ElectronTable or None
+        Electron rate coefficients versus E/N (columns = ``mech.electron_processes``).
+        Required when the mechanism has electron-impact processes, unless
+        ``rebuild_table`` is given (then it is built for the initial composition).
+    loss_frequency_s : array (n_s,) or None
+        First-order loss frequency of each species, s^-1 (walls, catalyst bed, flow).
+    loss_products : array (n_s, n_s) or None
+        ``loss_products[i, k]``: species k made per species i lost (e.g. 0.5 H2 per H).
+    source_m3_s : array (n_s,) or None
+        Constant source of each species, m^-3 s^-1 (feed).
+    t_eval_s : array or None
+        Output times within the span (sorted); None: every accepted step.
+    breakpoints_s : sequence of float
+        Extra restart times (discontinuities of the caller's terms).
+    rtol : float or array (n_s,)
+        Relative tolerance.
+    atol_m3 : float, array (n_s,) or None
+        Absolute tolerance, m^-3 (> 0); default ``max(1e6, 1e-20 * sum(y0))``.
+    max_steps : int
+        Maximum number of step attempts.
+    first_step_s : float or None
+        First step size, s (default: estimated).
+    max_step_s : float
+        Largest step size, s.
+    fixed_step_s : float or None
+        Constant step size without error control (for convergence studies).
+    rebuild_table : callable or None
+        ``rebuild_table(mole_fractions: dict) -> ElectronTable``, called when the
+        collision-partner mole fractions drift by more than ``partner_tolerance``.
+    partner_tolerance : float
+        Absolute mole-fraction drift that triggers a rebuild (default 0.02).
+    integrate_rates : bool
+        Accumulate the integrated reaction rates (costs two rate evaluations per step).
+    electron_species : str or None
+        Name of the electron species (default: ``mech.electron_index`` or "e"/"e-").
+    raise_on_failure : bool
+        Raise :class:`IntegrationError` (which carries the partial result) on failure;
+        otherwise return the result with its failure ``status`` and ``message``.
+
+    Returns
+    -------
+    KineticsResult
+
+    Raises
+    ------
+    IntegrationError
+        The integration failed (``raise_on_failure``).
+    ValueError
+        Inconsistent arguments.
+
+    References
+    ----------
+    See the module docstring.
+    """
+    species = tuple(mech.species)
+    n = len(species)
+    n_r = len(tuple(mech.reactions))
+    y = _vector(y0_m3, n, "y0_m3").copy()
+    if np.any(y < 0.0):
+        raise ValueError("y0_m3 must be >= 0")
+    t0, t1 = (float(v) for v in t_span_s)
+    if not (math.isfinite(t0) and math.isfinite(t1) and t1 > t0):
+        raise ValueError("t_span_s must be two finite times with end > start")
+    T_gas_K = float(T_gas_K)
+    if not (T_gas_K > 0.0 and math.isfinite(T_gas_K)):
+        raise ValueError("T_gas_K must be a positive temperature")
+    prof = as_field(field)
+    stops, seg_E0, seg_slope = segments(prof, t0, t1, breakpoints_s)
+
+    rtol_v = _vector(rtol, n, "rtol")
+    if np.any(rtol_v <= 0.0):
+        raise ValueError("rtol must be > 0")
+    if atol_m3 is None:
+        atol_v = np.full(n, max(ATOL_FLOOR_M3, ATOL_FRACTION * float(np.sum(y))))
+    else:
+        atol_v = _vector(atol_m3, n, "atol_m3")
+    if np.any(atol_v <= 0.0):
+        raise ValueError("atol_m3 must be > 0")
+
+    charge = np.asarray(mech.charge, dtype=np.float64)
+    e_idx = _electron_index(mech, electron_species)
+    heavy = np.ones(n, dtype=np.bool_)
+    if e_idx >= 0:
+        heavy[e_idx] = False
+    neutral = heavy & (charge == 0.0)
+
+    n_p = len(tuple(mech.electron_processes))
+    table = _check_table(electron_table, mech)
+    rebuild_times = []
+    n_rebuilds = 0
+    if table is None and rebuild_table is not None:
+        table = _check_table(rebuild_table(_mole_fractions(y, species, heavy, neutral)), mech)
+        n_rebuilds += 1
+    if table is None and n_p > 0:
+        raise ValueError(f"the mechanism has electron-impact processes "
+                         f"({', '.join(mech.electron_processes)}): give electron_table or rebuild_table")
+
+    def partners(tab):
+        names = [s for s in (tab.mole_fractions if tab is not None else {}) if s in species]
+        if tab is not None and names:
+            ref = [float(tab.mole_fractions[s]) for s in names]
+        else:
+            x = _mole_fractions(y, species, heavy, neutral)
+            names = list(x)
+            ref = [x[s] for s in names]
+        return (np.array([species.index(s) for s in names], dtype=np.int64),
+                np.array(ref, dtype=np.float64))
+
+    partner_idx, partner_ref = partners(table)
+    monitor = rebuild_table is not None and partner_idx.size > 0
+
+    model = build_model(mech, T_gas_K, electron_table=table, loss_frequency_s=loss_frequency_s,
+                        loss_products=loss_products, source_m3_s=source_m3_s)
+    cond = model[4]
+    cond[1:4] = (stops[0], seg_E0[0], seg_slope[0])
+
+    step_mode = t_eval_s is None
+    if step_mode:
+        t_eval = np.zeros(0)
+        cap = STEP_BUFFER
+    else:
+        t_eval = np.ascontiguousarray(np.atleast_1d(np.asarray(t_eval_s, dtype=np.float64)))
+        if t_eval.ndim != 1 or t_eval.size == 0 or np.any(np.diff(t_eval) < 0.0):
+            raise ValueError("t_eval_s must be a non-empty sorted 1-D array")
+        if t_eval[0] < t0 or t_eval[-1] > t1:
+            raise ValueError("t_eval_s must lie within t_span_s")
+        cap = t_eval.size
+    out_t = np.zeros(cap)
+    out_y = np.zeros((cap, n))
+    out_R = np.zeros((cap, n_r))
+    out_L = np.zeros((cap, n))
+    out_cond = np.zeros((cap, 3))
+    R_cum = np.zeros(n_r)
+    L_cum = np.zeros(n)
+    clipped = np.zeros(n)
+
+    fst = np.zeros(_N_F)
+    ist = np.zeros(_N_I, dtype=np.int64)
+    fst[_F_T] = t0
+    fst[_F_ERR_PREV] = 1.0
+    ist[_I_RESTART] = 1
+    ist[_I_FIRST] = 1
+    opts_f = np.array([float(max_step_s), 0.0 if fixed_step_s is None else float(fixed_step_s),
+                       float(partner_tolerance), 0.0 if first_step_s is None else float(first_step_s),
+                       float(np.sum(atol_v[charge != 0.0]))])
+    if not opts_f[_O_HMAX] > 0.0 or opts_f[_O_HFIX] < 0.0 or opts_f[_O_HFIRST] < 0.0:
+        raise ValueError("max_step_s must be > 0, fixed_step_s and first_step_s > 0 when given")
+    opts_i = np.array([int(max_steps), 1 if step_mode else 0, 1 if integrate_rates else 0,
+                       1 if monitor else 0], dtype=np.int64)
+
+    # outputs at the start time
+    k_el = np.zeros(n_p)
+    start = np.zeros(3)
+    _conditions(t0, model[3], cond, k_el, start)
+    n0 = 1 if step_mode else int(np.searchsorted(t_eval, t0, side="right"))
+    out_t[:n0] = t0
+    out_y[:n0] = y
+    out_cond[:n0] = start
+    ist[_I_OUT] = n0
+    fst[_F_QN] = charge_imbalance(y, charge, opts_f[_O_QN_FLOOR])
+
+    while True:
+        status = _run(y, fst, ist, stops, seg_E0, seg_slope, model, rtol_v, atol_v, opts_f,
+                      opts_i, t_eval, out_t, out_y, out_R, out_L, out_cond, R_cum, L_cum,
+                      clipped, partner_idx, partner_ref, heavy, charge)
+        if status == BUFFER_FULL:
+            grow = out_t.size
+            out_t = np.concatenate([out_t, np.zeros(grow)])
+            out_y = np.concatenate([out_y, np.zeros((grow, n))])
+            out_R = np.concatenate([out_R, np.zeros((grow, n_r))])
+            out_L = np.concatenate([out_L, np.zeros((grow, n))])
+            out_cond = np.concatenate([out_cond, np.zeros((grow, 3))])
+            continue
+        if status == TABLE_STALE:
+            x = _mole_fractions(y, species, heavy, neutral)
+            table = _check_table(rebuild_table(x), mech)
+            if table is None:
+                raise ValueError("rebuild_table returned None")
+            n_rebuilds += 1
+            rebuild_times.append(float(fst[_F_T]))
+            model = model[:3] + (table_arrays(table, n_p),) + model[4:]
+            # the new table was built for x: that is the new reference
+            names = [s_ for s_ in table.mole_fractions if s_ in x]
+            if names:
+                partner_idx = np.array([species.index(s_) for s_ in names], dtype=np.int64)
+            partner_ref = np.array([y[i] for i in partner_idx]) / max(float(np.sum(y[heavy])), 1e-300)
+            continue
+        break
+
+    m = int(ist[_I_OUT])
+    counters = Counters(n_steps=int(ist[_I_STEPS]), n_accepted=int(ist[_I_ACC]),
+                        n_rejected=int(ist[_I_REJ]),
+                        n_rejected_negative=int(ist[_I_REJ_NEG]), n_rhs=int(ist[_I_RHS]),
+                        n_jac=int(ist[_I_JAC]), n_lu=int(ist[_I_LU]),
+                        n_rate_quadrature=int(ist[_I_QUAD]), n_table_rebuilds=n_rebuilds)
+    if status == SUCCESS:
+        message = "success"
+        f_t = f_h = math.nan
+        f_s = ""
+    else:
+        f_t = float(fst[_F_T])
+        f_h = float(fst[_F_H])
+        f_s = species[int(ist[_I_WORST])] if 0 <= ist[_I_WORST] < n else ""
+        cause = CAUSE_TEXT.get(int(ist[_I_CAUSE]), "")
+        message = (f"integration failed at t = {f_t:.6g} s: {STATUS_TEXT[status]}"
+                   f"{' (last rejection: ' + cause + ')' if cause else ''}; step size "
+                   f"{f_h:.3g} s; species with the largest error: {f_s or '?'} "
+                   f"({counters.n_steps} steps, {counters.n_rejected} rejected)")
+    yk = out_y[:m]
+    result = KineticsResult(
+        species=species, reactions=tuple(mech.reactions), times_s=out_t[:m].copy(),
+        densities_m3=yk.copy(), T_gas_K=np.full(m, T_gas_K), E_N_Td=out_cond[:m, 0].copy(),
+        mean_energy_eV=out_cond[:m, 1].copy(),
+        electron_drift_velocity_m_s=out_cond[:m, 2].copy(),
+        electron_density_m3=(yk[:, e_idx].copy() if e_idx >= 0 else np.zeros(m)),
+        integrated_rates_m3=out_R[:m].copy(), integrated_linear_m3=out_L[:m].copy(),
+        clipped_m3=clipped, quasi_neutrality=float(fst[_F_QN]), counters=counters,
+        status=int(status), message=message, table_rebuild_times_s=tuple(rebuild_times),
+        failure_time_s=f_t, failure_step_s=f_h, failure_species=f_s)
+    if status != SUCCESS and raise_on_failure:
+        raise IntegrationError(result)
+    return result

@@ -1,0 +1,223 @@
+"""RODAS4: a stiffly accurate, L-stable Rosenbrock method of order 4 (embedded order 3).
+
+One step from (t0, y0) with step h, in the transformed form of Hairer & Wanner (1996,
+section IV.7, eq. (7.25)) that needs no matrix-vector products::
+
+    (I/(gamma h) - J) u_i = f(t0 + alpha_i h, y0 + sum_{j<i} a_ij u_j)
+                            + sum_{j<i} (c_ij / h) u_j + h d_i f_t,       i = 1..6
+    y1 = y0 + sum_i m_i u_i
+
+with J = df/dy and f_t = df/dt at (t0, y0). RODAS4 is stiffly accurate: stages 5 and 6
+are evaluated at t0 + h, the stage-6 point y0 + sum_{j<6} a_6j u_j is the embedded
+order-3 solution, y1 is that point plus u_6, and u_6 itself is the error estimate
+(m_i = a_6i for i < 6, m_6 = 1). Dense output of order 3 (Hairer & Wanner's continuous
+extension)::
+
+    y(t0 + theta h) = (1 - theta) y0 + theta (y1 + (1 - theta) (H1 + theta H2)),
+    H1 = sum_{i<=5} h1_i u_i,  H2 = sum_{i<=5} h2_i u_i.
+
+Provenance of the coefficients: recalled from memory of Hairer & Wanner (1996), section
+IV.7, and of the coefficient list of the RODAS code published with that book (method
+choice "RODAS4"), 16 significant digits. They are checked in the tests: the eight
+order-4 conditions of Hairer & Wanner's Table 7.1 hold to round-off after transforming back
+to (alpha_ij, gamma_ij, b_i), the embedded solution satisfies the four order-3
+conditions, the dense output satisfies the order-3 continuous conditions, and the
+measured order of convergence on smooth nonlinear problems is 4.
+
+References
+----------
+Hairer, E. & Wanner, G. (1996), Solving Ordinary Differential Equations II: Stiff and
+Differential-Algebraic Problems, 2nd ed., Springer, section IV.7 (Rosenbrock methods,
+the transformed form (7.25), order conditions Table 7.1, the method RODAS and its dense
+output).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from numba import njit
+
+from .kinetics import RHS, evaluate, field_at
+from .linalg import lu_factor, lu_solve
+
+N_STAGES = 6
+#: order of the method and of its embedded error estimate
+ORDER = 4
+EMBEDDED_ORDER = 3
+#: order of the dense output
+DENSE_ORDER = 3
+
+GAMMA = 0.25
+
+#: a_ij of the transformed form (stage points), row i uses columns j < i
+A = np.zeros((6, 6))
+A[1, 0] = 1.544
+A[2, 0] = 0.9466785280815826
+A[2, 1] = 0.2557011698983284
+A[3, 0] = 3.314825187068521
+A[3, 1] = 2.896124015972201
+A[3, 2] = 0.9986419139977817
+A[4, 0] = 1.221224509226641
+A[4, 1] = 6.019134481288629
+A[4, 2] = 12.53708332932087
+A[4, 3] = -0.6878860361058950
+A[5, 0:4] = A[4, 0:4]
+A[5, 4] = 1.0
+
+#: c_ij of the transformed form
+C = np.zeros((6, 6))
+C[1, 0] = -5.6688
+C[2, 0] = -2.430093356833875
+C[2, 1] = -0.2063599157091915
+C[3, 0] = -0.1073529058151375
+C[3, 1] = -9.594562251023355
+C[3, 2] = -20.47028614809616
+C[4, 0] = 7.496443313967647
+C[4, 1] = -10.24680431464352
+C[4, 2] = -33.99990352819905
+C[4, 3] = 11.70890893206160
+C[5, 0] = 8.083246795921522
+C[5, 1] = -7.981132988064893
+C[5, 2] = -31.52159432874371
+C[5, 3] = 16.31930543123136
+C[5, 4] = -6.058818238834054
+
+#: alpha_i: stage times as fractions of h
+ALPHA = np.array([0.0, 0.386, 0.21, 0.63, 1.0, 1.0])
+#: d_i = gamma_i = sum_j gamma_ij: weights of h f_t in the stage right-hand sides
+D = np.array([0.25, -0.1043, 0.1035, -0.3620000000000023e-01, 0.0, 0.0])
+
+#: m_i: weights of the solution (stiffly accurate: the last row of A, plus u_6)
+M = np.array([A[4, 0], A[4, 1], A[4, 2], A[4, 3], 1.0, 1.0])
+#: weights of the embedded (order-3) solution: the stage-6 point
+M_EMBEDDED = np.array([A[4, 0], A[4, 1], A[4, 2], A[4, 3], 1.0, 0.0])
+
+#: dense-output coefficients (on u_1..u_5)
+H1 = np.array([10.12623508344586, -7.487995877610167, -34.80091861555747,
+               -7.992771707568823, 1.025137723295662])
+H2 = np.array([-0.6762803392801253, 6.087714651680015, 16.43084320892478,
+               24.76722511418386, -6.594389125716872])
+
+
+def standard_form():
+    """The method in the standard Rosenbrock form (alpha_ij, gamma_ij, b_i, b_hat_i).
+
+    Transformation of Hairer & Wanner (1996), section IV.7, after eq. (7.25):
+    Gamma^{-1} = diag(1/gamma) - C, alpha_ij = (A Gamma)_ij, b = m Gamma.
+
+    Returns
+    -------
+    dict
+        ``alpha`` (6, 6), ``gamma`` (6, 6) (with ``GAMMA`` on the diagonal), ``b`` (6,),
+        ``b_hat`` (6,) and ``dense(theta)`` -> b(theta) (6,) of the continuous extension.
+    """
+    g_inv = np.eye(N_STAGES) / GAMMA - C
+    gam = np.linalg.inv(g_inv)
+    alpha = A @ gam
+    b = M @ gam
+    b_hat = M_EMBEDDED @ gam
+
+    def dense(theta):
+        h1 = np.r_[H1, 0.0]
+        h2 = np.r_[H2, 0.0]
+        w = theta * M + theta * (1.0 - theta) * (h1 + theta * h2)
+        return w @ gam
+
+    return {"alpha": alpha, "gamma": gam, "b": b, "b_hat": b_hat, "dense": dense}
+
+
+@njit(cache=True)
+def rodas4_step(t, y, h, f0, J, fdt, use_fdt, model, lu, piv, U, ystage, fstage, ynew):
+    """One RODAS4 step: stage vectors ``U`` (6, n) and the new solution ``ynew``.
+
+    Parameters
+    ----------
+    t : float
+        Start of the step, s.
+    y : ndarray (n,)
+        Solution at ``t``, m^-3.
+    h : float
+        Step size, s.
+    f0 : ndarray (n,)
+        f(t, y).
+    J : ndarray (n, n)
+        df/dy at (t, y).
+    fdt : ndarray (n,)
+        df/dt at (t, y) (read only when ``use_fdt``).
+    use_fdt : bool
+        Whether f depends on t explicitly on this step.
+    model : tuple
+        Passed to :func:`plasmazero.numerics.kinetics.evaluate` (field of the current
+        segment in ``model[4]``).
+    lu, piv, U, ystage, fstage, ynew : ndarray
+        Work arrays (n, n), (n,), (6, n), (n,), (n,); ``ynew`` (n,) is the output.
+
+    Returns
+    -------
+    int
+        0 on success, otherwise the singular-pivot code of
+        :func:`plasmazero.numerics.linalg.lu_factor` (nothing else is computed then).
+        Stage 6's vector ``U[5]`` is the error estimate.
+
+    References
+    ----------
+    Hairer & Wanner (1996), Solving ODEs II, section IV.7, eq. (7.25) and the RODAS
+    method.
+    """
+    n = y.shape[0]
+    inv_gh = 1.0 / (GAMMA * h)
+    for i in range(n):
+        for m in range(n):
+            lu[i, m] = -J[i, m]
+        lu[i, i] += inv_gh
+    info = lu_factor(lu, piv)
+    if info != 0:
+        return info
+    inv_h = 1.0 / h
+    for s in range(N_STAGES):
+        if s == 0:
+            for i in range(n):
+                fstage[i] = f0[i]
+        else:
+            for i in range(n):
+                v = y[i]
+                for m in range(s):
+                    v += A[s, m] * U[m, i]
+                ystage[i] = v
+            evaluate(field_at(model[4], t + ALPHA[s] * h), ystage, model, fstage, J, RHS)
+        for i in range(n):
+            v = fstage[i]
+            for m in range(s):
+                v += C[s, m] * inv_h * U[m, i]
+            if use_fdt:
+                v += h * D[s] * fdt[i]
+            U[s, i] = v
+        lu_solve(lu, piv, U[s])
+    for i in range(n):
+        v = y[i]
+        for s in range(N_STAGES):
+            v += M[s] * U[s, i]
+        ynew[i] = v
+    return 0
+
+
+@njit(cache=True)
+def dense_coefficients(U, h1_out, h2_out):
+    """H1 and H2 of the dense output from the stage vectors of an accepted step."""
+    n = U.shape[1]
+    for i in range(n):
+        a = 0.0
+        b = 0.0
+        for s in range(5):
+            a += H1[s] * U[s, i]
+            b += H2[s] * U[s, i]
+        h1_out[i] = a
+        h2_out[i] = b
+
+
+@njit(cache=True)
+def dense_eval(theta, y0, y1, h1, h2, out):
+    """Dense output at t0 + theta h (0 <= theta <= 1), order 3 (module docstring)."""
+    s1 = 1.0 - theta
+    for i in range(y0.shape[0]):
+        out[i] = s1 * y0[i] + theta * (y1[i] + s1 * (h1[i] + theta * h2[i]))
