@@ -214,12 +214,13 @@ class _PointSolver:
 
         x0 = guess
         F, faces, g0, gross = evaluate(x0)
-        if abs(g0) <= tol * gross or gross == 0.0:
+        # |gross|: far-tail round-off can leave it a tiny negative number when nothing ionizes
+        if abs(g0) <= tol * abs(gross) or g0 == 0.0:
             return F, faces, (0.0, x0) if spatial else (x0, 0.0)
         x1 = x0 + g0
         for _ in range(60):
             F, faces, g1, gross = evaluate(x1)
-            if abs(g1) <= tol * gross or gross == 0.0:
+            if abs(g1) <= tol * abs(gross) or g1 == 0.0:
                 return F, faces, (0.0, x1) if spatial else (x1, 0.0)
             x2 = x1 + g1 if g1 == g0 else x1 - g1 * (x1 - x0) / (g1 - g0)
             x0, g0, x1 = x1, g1, x2
