@@ -7,15 +7,15 @@ Modules (one concern each)::
     electrons    electron coefficient tables versus E/N and their interpolation
     rosenbrock   RODAS4 coefficients, one step, dense output
     controller   error norm and PI step-size control
-    field        reduced-field profiles E/N(t) and their restart segments
+    field        reduced-field and electron-density profiles and their restart segments
     integrate    the compiled step loop and the public entry point
     results      the result record, cost counters, status codes, failure exception
 """
 
 from .electrons import ElectronTable
-from .field import FieldProfile
+from .field import ElectronDensityProfile, FieldProfile
 from .integrate import integrate
 from .results import Counters, IntegrationError, KineticsResult
 
-__all__ = ["Counters", "ElectronTable", "FieldProfile", "IntegrationError", "KineticsResult",
-           "integrate"]
+__all__ = ["Counters", "ElectronDensityProfile", "ElectronTable", "FieldProfile",
+           "IntegrationError", "KineticsResult", "integrate"]

@@ -5,6 +5,16 @@ constant before the first and after the last. A time given twice is a jump (the 
 value is the left limit, the second the right limit). The integrator restarts at every
 breakpoint inside the run, so each integration segment sees an E/N that is exactly linear
 in time, and a jump is followed exactly (no step straddles it).
+
+Prescribed electron density
+---------------------------
+:class:`ElectronDensityProfile` (times_s, n_e_m3) is built the same way, with one
+difference: a NaN value means "free". An interval between two consecutive times whose
+values are both finite is *prescribed* (there n_e is linear in time and the integrator
+imposes it); every other interval, and everything before the first and after the last
+time, is free (the electrons follow the kinetics). This is how the discharge layer
+imposes the electron density that the deposited power requires (P = e n_e w E, w the
+drift velocity) while the kinetics keeps the other species.
 """
 
 from __future__ import annotations
@@ -102,3 +112,84 @@ def segments(field, t0, t1, breakpoints):
             s = (e[i + 1] - e[i]) / (t[i + 1] - t[i])
             E0[k], slope[k] = e[i] + s * (a - t[i]), s
     return stops, E0, slope
+
+
+@dataclass(frozen=True)
+class ElectronDensityProfile:
+    """Prescribed electron density versus time, piecewise linear; NaN = free (a record).
+
+    Attributes
+    ----------
+    times_s : ndarray (n,)
+        Non-decreasing times, s; a time given twice is a jump.
+    n_e_m3 : ndarray (n,)
+        Electron density at those times, m^-3 (>= 0), or NaN. An interval whose two end
+        values are finite is prescribed; other intervals, and the time before the first
+        and after the last entry, are free (module docstring).
+    """
+
+    times_s: np.ndarray
+    n_e_m3: np.ndarray
+
+    def __post_init__(self):
+        t = np.atleast_1d(np.asarray(self.times_s, dtype=np.float64))
+        v = np.atleast_1d(np.asarray(self.n_e_m3, dtype=np.float64))
+        if t.ndim != 1 or t.shape != v.shape or t.size == 0:
+            raise ValueError("electron density profile: times_s and n_e_m3 must be 1-D arrays "
+                             "of the same non-zero length")
+        if not np.all(np.isfinite(t)):
+            raise ValueError("electron density profile: times_s must be finite")
+        if np.any(np.isinf(v)) or np.any(v[np.isfinite(v)] < 0.0):
+            raise ValueError("electron density profile: n_e_m3 must be >= 0 or NaN (free)")
+        d = np.diff(t)
+        if np.any(d < 0.0):
+            raise ValueError("electron density profile: times_s must be non-decreasing")
+        if np.any((d[:-1] == 0.0) & (d[1:] == 0.0)):
+            raise ValueError("electron density profile: a time may appear at most twice (a jump)")
+        object.__setattr__(self, "times_s", t)
+        object.__setattr__(self, "n_e_m3", v)
+
+    def at(self, t_s):
+        """Prescribed n_e (m^-3) at ``t_s`` (the right limit at a jump); NaN where free."""
+        t = self.times_s
+        i = int(np.searchsorted(t, t_s, side="right")) - 1
+        if i < 0 or i >= t.size - 1:
+            return float("nan")
+        a, b = self.n_e_m3[i], self.n_e_m3[i + 1]
+        w = (t_s - t[i]) / (t[i + 1] - t[i])
+        return float(a + w * (b - a))
+
+
+def as_density_profile(profile):
+    """An :class:`ElectronDensityProfile` from a profile, a (times_s, n_e_m3) pair or None."""
+    if profile is None or isinstance(profile, ElectronDensityProfile):
+        return profile
+    if hasattr(profile, "times_s") and hasattr(profile, "n_e_m3"):
+        return ElectronDensityProfile(profile.times_s, profile.n_e_m3)
+    times, values = profile
+    return ElectronDensityProfile(times, values)
+
+
+def density_segments(profile, stops):
+    """Per integration segment: [prescribed (1/0), n_e at its start (m^-3), slope (m^-3/s)].
+
+    ``stops`` must contain the profile's times inside the run (they are restart times),
+    so that each segment lies within one interval of the profile.
+
+    Returns
+    -------
+    ndarray float64 (len(stops) - 1, 3)
+    """
+    n = stops.size - 1
+    out = np.zeros((n, 3))
+    if profile is None:
+        return out
+    t, v = profile.times_s, profile.n_e_m3
+    for k in range(n):
+        a, b = stops[k], stops[k + 1]
+        i = int(np.searchsorted(t, 0.5 * (a + b), side="right")) - 1
+        if i < 0 or i >= t.size - 1 or not (np.isfinite(v[i]) and np.isfinite(v[i + 1])):
+            continue
+        s = (v[i + 1] - v[i]) / (t[i + 1] - t[i])
+        out[k] = (1.0, max(v[i] + s * (a - t[i]), 0.0), s)
+    return out

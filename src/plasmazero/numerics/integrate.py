@@ -49,6 +49,41 @@ How
   negative charge density); states whose charged densities are below the sum of their
   absolute tolerances are skipped.
 
+Options for the discharge workflow
+----------------------------------
+* ``rate_multipliers`` (n_r,): factors on the evaluated rate coefficients (and on
+  dk/dn_M, so the Jacobian stays exact), for sensitivity and uncertainty analysis. REVERSE
+  rows take their own factor: a reversible reaction keeps detailed balance only when its
+  forward and reverse rows get the same one.
+* ``constant_total_density``: the run follows a Lagrangian plug-flow parcel at constant
+  pressure and gas temperature. Reactions that change the number of molecules (CO2 ->
+  CO + O, 2 O + M -> O2 + M) change the parcel's volume V instead of the total density,
+  which stays at its initial value N0: dn_i/dt = f_i - n_i S / N, S = sum_k f_k (linear
+  loss and source terms included), N = sum_k n_k (= N0 to round-off: the added term makes
+  sum_i dn_i/dt vanish identically, and Rosenbrock methods keep such linear invariants).
+  The exact Jacobian of the added term is in :mod:`plasmazero.numerics.kinetics`. The
+  expansion factor phi(t) = V(t)/V(t0) = exp(integral of S/N dt) is accumulated with the
+  same two-point Gauss-Legendre quadrature as the integrated rates and reported as
+  ``expansion_factor``; n_i phi is then the amount per initial volume, and the element
+  totals sum_i a_ei n_i phi are conserved to the accuracy of the integration (phi and
+  the n_i are integrated separately; measured 0.05 rtol). ``integrated_rates_parcel_m3``
+  holds the integral of r_j phi dt (reactions per initial volume, for molar bookkeeping),
+  with phi at the two quadrature nodes from the straight line through the node values of
+  S/N. Gas expansion in plug-flow plasma reactors: e.g. Pinhão et al. (2016), Int. J.
+  Hydrogen Energy 41, 9245 (cited from memory).
+* ``electron_density_profile``: the electron density imposed as a piecewise-linear
+  function of time (NaN = free, :class:`plasmazero.numerics.field.ElectronDensityProfile`).
+  Its times are restart times. On a prescribed segment the electron row of the system is
+  d n_e/dt = the profile's slope with a zero Jacobian row (the electron column still feeds
+  the other rows), y_e is set to the profile's value at the segment start, and the
+  expansion term leaves the electrons out (S / N becomes S / (N - n_e) for the others,
+  which keeps the total density constant). This is how the discharge layer imposes the
+  electron density that the deposited power requires (P = e n_e w E, w the drift
+  velocity); elsewhere the electrons follow the kinetics.
+* ``integrated_electron_density_s_m3``: the integral of n_e dt by the same quadrature on
+  the dense output of the electron density (no extra right-hand-side evaluations), for
+  energy bookkeeping (energy per electron times this integral).
+
 References
 ----------
 Hairer, E. & Wanner, G. (1996), Solving Ordinary Differential Equations II, 2nd ed.,
@@ -67,9 +102,11 @@ from numba import njit
 
 from .controller import error_norm, next_step_accepted, next_step_rejected
 from .electrons import ElectronTable, interpolate_table, table_arrays
-from .field import as_field, segments
-from .kinetics import (JACOBIAN, RATES, RHS, charge_imbalance, evaluate, field_at,
-                       linear_terms, net_stoichiometry)
+from .field import as_density_profile, as_field, density_segments, segments
+from .kinetics import (COND_ELECTRON, COND_ELECTRON_SLOPE, COND_EXPANSION, COND_PRESCRIBED,
+                       COND_SIZE, JACOBIAN, JACOBIAN_SPLIT, RATES, RHS, charge_imbalance,
+                       evaluate, field_at, jacobian_pattern, linear_terms, net_stoichiometry)
+from .linalg import sparse_symbolic
 from .results import (BUFFER_FULL, CAUSE_ERROR, CAUSE_NEGATIVE, CAUSE_NON_FINITE,
                       CAUSE_SINGULAR, CAUSE_TEXT, MAX_STEPS, NON_FINITE_STATE, STATUS_TEXT,
                       STEP_TOO_SMALL, SUCCESS, TABLE_STALE, Counters, IntegrationError,
@@ -124,10 +161,15 @@ def _all_finite(v):
 
 
 @njit(cache=True)
-def _run(y, fst, ist, stops, seg_E0, seg_slope, model, rtol, atol, opts_f, opts_i,
-         t_eval, out_t, out_y, out_R, out_L, out_cond, R_cum, L_cum, clipped,
-         partner_idx, partner_ref, heavy, charge):
+def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_f, opts_i,
+         t_eval, out_t, out_y, out_R, out_L, out_cond, out_ext, out_Rp, R_cum, L_cum, cum,
+         Rp_cum, clipped, partner_idx, partner_ref, heavy, charge, sp):
     """The step loop; returns a status (``results`` codes). All state lives in the arrays.
+
+    ``seg_ne`` (n_seg, 3): per segment [prescribed (1/0), n_e at its start, slope] of the
+    electron density; ``cum`` = [integral of S/N_D dt (ln of the expansion factor),
+    integral of n_e dt]; ``Rp_cum`` the parcel integrals of the rates; ``out_ext`` (cap, 2)
+    and ``out_Rp`` (cap, n_r) their outputs (expansion factor, integral of n_e).
 
     The loop runs until the end time, a failure, a stale electron table (``TABLE_STALE``)
     or a full output buffer (``BUFFER_FULL``); the driver may call it again to continue.
@@ -156,7 +198,12 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, model, rtol, atol, opts_f, opts_
     yd = np.empty(n)
     lq = np.empty(n)
     k_el = np.empty(table[2].shape[1])
+    rq = np.empty(n_r)
+    gq = np.empty(2)
+    scal = work[6]
     inv_sqrt3 = 1.0 / math.sqrt(3.0)
+    e_idx = int(cond[COND_ELECTRON])
+    expand = cond[COND_EXPANSION] != 0.0
 
     t = fst[_F_T]
     h = fst[_F_H]
@@ -167,6 +214,9 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, model, rtol, atol, opts_f, opts_
     max_steps = opts_i[_O_MAX_STEPS]
     step_mode = opts_i[_O_MODE] == 1
     do_rates = opts_i[_O_RATES] == 1
+    do_quad = do_rates or expand
+    jac_mode = JACOBIAN_SPLIT if sp[0][0] == 1 else JACOBIAN
+    quad_mode = RHS if expand else RATES
     monitor = opts_i[_O_MONITOR] == 1
     h_max = opts_f[_O_HMAX]
     h_fixed = opts_f[_O_HFIX]
@@ -178,6 +228,8 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, model, rtol, atol, opts_f, opts_
         cond[1] = stops[seg]
         cond[2] = seg_E0[seg]
         cond[3] = seg_slope[seg]
+        cond[COND_PRESCRIBED] = seg_ne[seg, 0]
+        cond[COND_ELECTRON_SLOPE] = seg_ne[seg, 2]
     while True:
         if seg >= n_seg:
             break
@@ -194,6 +246,9 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, model, rtol, atol, opts_f, opts_
                         out_L[k, i] = L_cum[i]
                     for j in range(n_r):
                         out_R[k, j] = R_cum[j]
+                        out_Rp[k, j] = Rp_cum[j]
+                    out_ext[k, 0] = math.exp(cum[0])
+                    out_ext[k, 1] = cum[1]
                     _conditions(t_eval[k], table, cond, k_el, out_cond[k])
                     k += 1
                 ist[_I_OUT] = k
@@ -204,12 +259,17 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, model, rtol, atol, opts_f, opts_
                 cond[1] = stops[seg]
                 cond[2] = seg_E0[seg]
                 cond[3] = seg_slope[seg]
+                cond[COND_PRESCRIBED] = seg_ne[seg, 0]
+                cond[COND_ELECTRON_SLOPE] = seg_ne[seg, 2]
+                if seg_ne[seg, 0] != 0.0 and e_idx >= 0:
+                    # prescribed electron density: restart from the profile's value
+                    y[e_idx] = seg_ne[seg, 1]
             continue
         if ist[_I_STEPS] >= max_steps:
             status = MAX_STEPS
             break
         E_now = field_at(cond, t)
-        evaluate(E_now, y, model, f0, J, JACOBIAN)
+        evaluate(E_now, y, model, f0, J, jac_mode)
         ist[_I_JAC] += 1
         ist[_I_RHS] += 1
         if not (_all_finite(f0) and _all_finite(J)):
@@ -283,7 +343,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, model, rtol, atol, opts_f, opts_
                 landing = True
             ist[_I_STEPS] += 1
             info = rodas4_step(t, y, h, f0, J, fdt, use_fdt, model, lu, piv, U, ystage,
-                               fstage, ynew)
+                               fstage, ynew, sp)
             ist[_I_LU] += 1
             cause = 0
             worst = 0
@@ -343,23 +403,49 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, model, rtol, atol, opts_f, opts_
             th = 1.0
             if is_out:
                 th = min(1.0, max(0.0, (t_eval[k] - t) / h))
-            if do_rates and th > theta_a:
+            if th > theta_a:
                 # two-point Gauss-Legendre rule on [theta_a, th] (Abramowitz & Stegun
                 # 1964, Handbook of Mathematical Functions, 25.4.29)
                 half = 0.5 * (th - theta_a)
                 mid = 0.5 * (th + theta_a)
                 w = half * h
-                for node_sign in range(2):
-                    node = mid + (2 * node_sign - 1) * half * inv_sqrt3
-                    dense_eval(node, y, ynew, h1, h2, yd)
-                    evaluate(field_at(cond, t + node * h), yd, model, ftmp, J, RATES)
-                    r = work[3]
-                    for j in range(n_r):
-                        R_cum[j] += w * r[j]
-                    linear_terms(yd, linear, lq)
-                    for i in range(n):
-                        L_cum[i] += w * lq[i]
-                ist[_I_QUAD] += 2
+                if e_idx >= 0:
+                    for node_sign in range(2):
+                        node = mid + (2 * node_sign - 1) * half * inv_sqrt3
+                        s1 = 1.0 - node
+                        cum[1] += w * (s1 * y[e_idx] + node * (
+                            ynew[e_idx] + s1 * (h1[e_idx] + node * h2[e_idx])))
+                if do_quad:
+                    for node_sign in range(2):
+                        node = mid + (2 * node_sign - 1) * half * inv_sqrt3
+                        dense_eval(node, y, ynew, h1, h2, yd)
+                        evaluate(field_at(cond, t + node * h), yd, model, ftmp, J, quad_mode)
+                        if do_rates:
+                            r = work[3]
+                            for j in range(n_r):
+                                R_cum[j] += w * r[j]
+                            linear_terms(yd, linear, lq)
+                            for i in range(n):
+                                L_cum[i] += w * lq[i]
+                            if node_sign == 0:
+                                for j in range(n_r):
+                                    rq[j] = r[j]
+                        gq[node_sign] = scal[0]
+                    ist[_I_QUAD] += 2
+                    if expand:
+                        if do_rates:
+                            # ln(phi) at the two nodes: integral from theta_a of the
+                            # straight line through the two node values of S/N_D
+                            d1 = mid - half * inv_sqrt3 - theta_a
+                            ds = 2.0 * half * inv_sqrt3
+                            sg = (gq[1] - gq[0]) / ds
+                            p1 = math.exp(cum[0] + h * (d1 * gq[0] - 0.5 * sg * d1 * d1))
+                            p2 = math.exp(cum[0] + h * ((d1 + ds) * gq[0]
+                                                        + 0.5 * sg * (ds * ds - d1 * d1)))
+                            r = work[3]
+                            for j in range(n_r):
+                                Rp_cum[j] += w * (rq[j] * p1 + r[j] * p2)
+                        cum[0] += w * (gq[0] + gq[1])
             theta_a = th
             if not is_out:
                 break
@@ -370,6 +456,9 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, model, rtol, atol, opts_f, opts_
                 out_L[k, i] = L_cum[i]
             for j in range(n_r):
                 out_R[k, j] = R_cum[j]
+                out_Rp[k, j] = Rp_cum[j]
+            out_ext[k, 0] = math.exp(cum[0])
+            out_ext[k, 1] = cum[1]
             _conditions(t_eval[k], table, cond, k_el, out_cond[k])
             k += 1
         ist[_I_OUT] = k
@@ -397,6 +486,9 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, model, rtol, atol, opts_f, opts_
                 out_L[k, i] = L_cum[i]
             for j in range(n_r):
                 out_R[k, j] = R_cum[j]
+                out_Rp[k, j] = Rp_cum[j]
+            out_ext[k, 0] = math.exp(cum[0])
+            out_ext[k, 1] = cum[1]
             _conditions(t, table, cond, k_el, out_cond[k])
             k += 1
             ist[_I_OUT] = k
@@ -493,13 +585,25 @@ def linear_arrays(n, loss_frequency_s=None, loss_products=None, source_m3_s=None
     return nu, P, S
 
 
+def rate_multiplier_array(mech, rate_multipliers):
+    """Validated rate multipliers, float64 (n_r,) (all ones for None)."""
+    n_r = len(tuple(mech.reactions))
+    mult = _vector(rate_multipliers, n_r, "rate_multipliers", default=1.0)
+    if np.any(mult < 0.0):
+        raise ValueError("rate_multipliers must be >= 0")
+    return mult
+
+
 def build_model(mech, T_gas_K, *, electron_table=None, loss_frequency_s=None,
-                loss_products=None, source_m3_s=None, E_N_Td=0.0):
+                loss_products=None, source_m3_s=None, E_N_Td=0.0, rate_multipliers=None,
+                constant_total_density=False, electron_species=None):
     """The ``model`` tuple of :mod:`plasmazero.numerics.kinetics` for a mechanism.
 
     Used by :func:`integrate`; also lets callers evaluate the right-hand side and the
     Jacobian at a state (``kinetics.evaluate``), e.g. for tests and diagnostics. The field
-    is the constant ``E_N_Td`` (Td) until :func:`integrate` sets its segments.
+    is the constant ``E_N_Td`` (Td) until :func:`integrate` sets its segments; the
+    electron density is free (``cond[6] = 0``) until a prescribed segment sets it.
+    ``rate_multipliers`` and ``constant_total_density`` as for :func:`integrate`.
     """
     species = tuple(mech.species)
     n = len(species)
@@ -513,14 +617,66 @@ def build_model(mech, T_gas_K, *, electron_table=None, loss_frequency_s=None,
     mech_arrays = (reactant_index, net_index, net_coeff,
                    np.ascontiguousarray(mech.third_body, dtype=np.int64),
                    np.ascontiguousarray(mech.efficiencies, dtype=np.float64).reshape(-1, n),
-                   np.ascontiguousarray(mech.multiply_M, dtype=np.bool_))
+                   np.ascontiguousarray(mech.multiply_M, dtype=np.bool_),
+                   rate_multiplier_array(mech, rate_multipliers))
     n_tb = mech_arrays[4].shape[0]
     linear = linear_arrays(n, loss_frequency_s, loss_products, source_m3_s)
-    cond = np.array([float(T_gas_K), 0.0, float(E_N_Td), 0.0])
+    cond = np.zeros(COND_SIZE)
+    cond[0:4] = (float(T_gas_K), 0.0, float(E_N_Td), 0.0)
+    cond[COND_EXPANSION] = 1.0 if constant_total_density else 0.0
+    cond[COND_ELECTRON] = float(_electron_index(mech, electron_species))
     work = (np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_p),
-            np.zeros(n_tb))
+            np.zeros(n_tb), np.zeros(4), np.zeros(n), np.zeros(n), np.zeros(n))
     kernel_args = tuple(mech.kernel_args)
     return (mech_arrays, kernel_args, linear, table_arrays(table, n_p), cond, work)
+
+
+#: automatic choice of the linear solver (``linear_solver="auto"``): the sparse LU when
+#: the system has at least SPARSE_MIN_SPECIES species and one sparse factorisation needs
+#: fewer than SPARSE_FLOP_FRACTION of the n^3 / 3 multiply-adds of the dense one
+#: (measured in benchmarks/bench_kinetics.py --solvers; see linear_solver_arrays)
+SPARSE_MIN_SPECIES = 40
+SPARSE_FLOP_FRACTION = 0.25
+
+
+def linear_solver_arrays(model, linear_solver="auto"):
+    """The linear-solver tuple of the stepper and the name of the choice.
+
+    Parameters
+    ----------
+    model : tuple
+        From :func:`build_model`.
+    linear_solver : {"auto", "dense", "sparse"}
+        "dense": LU with partial pivoting; "sparse": minimum-degree ordered LU with static
+        pivots on the pattern of :func:`plasmazero.numerics.kinetics.jacobian_pattern`
+        (dense fallback per step when a pivot is tiny, see ``linalg``); "auto": sparse
+        when n >= ``SPARSE_MIN_SPECIES`` and its factorisation needs fewer than
+        ``SPARSE_FLOP_FRACTION`` of the dense multiply-adds.
+
+    Returns
+    -------
+    (tuple, str)
+        ``sp`` for :func:`plasmazero.numerics.rosenbrock.rodas4_step` and "dense" or
+        "sparse".
+    """
+    if linear_solver not in ("auto", "dense", "sparse"):
+        raise ValueError("linear_solver must be 'auto', 'dense' or 'sparse'")
+    n = model[2][0].shape[0]
+    ei = np.zeros(0, dtype=np.int64)
+    ef = np.zeros(0)
+    dense = (np.zeros(3, dtype=np.int64), ei, ei, ei, ei, ei, ei, ef, ef, np.zeros((2, 0)),
+             np.zeros(2, dtype=np.int64))
+    if linear_solver == "dense" or (linear_solver == "auto" and n < SPARSE_MIN_SPECIES):
+        return dense, "dense"
+    order, indptr, indices, diag, flops = sparse_symbolic(jacobian_pattern(model, split=True))
+    if linear_solver == "auto" and flops > SPARSE_FLOP_FRACTION * n ** 3 / 3.0:
+        return dense, "dense"
+    rows = np.repeat(np.arange(n), np.diff(indptr))
+    third_bodies = 1 if np.any(model[0][3] >= 0) else 0
+    sp = (np.array([1, third_bodies, 0], dtype=np.int64), order, indptr, indices, diag,
+          np.ascontiguousarray(order[rows]), np.ascontiguousarray(order[indices]),
+          np.zeros(indices.size), np.zeros(n), np.zeros((2, n)), np.zeros(2, dtype=np.int64))
+    return sp, "sparse"
 
 
 def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None,
@@ -528,7 +684,9 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
               breakpoints_s=(), rtol=1e-6, atol_m3=None, max_steps=DEFAULT_MAX_STEPS,
               first_step_s=None, max_step_s=math.inf, fixed_step_s=None,
               rebuild_table=None, partner_tolerance=0.02, integrate_rates=True,
-              electron_species=None, raise_on_failure=True):
+              electron_species=None, raise_on_failure=True, rate_multipliers=None,
+              constant_total_density=False, electron_density_profile=None,
+              linear_solver="auto"):
     """Integrate the species balances of a compiled mechanism over ``t_span_s``.
 
     Parameters
@@ -584,6 +742,19 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
     raise_on_failure : bool
         Raise :class:`IntegrationError` (which carries the partial result) on failure;
         otherwise return the result with its failure ``status`` and ``message``.
+    rate_multipliers : array (n_r,) or None
+        Factor on every rate coefficient row (default 1), applied after evaluation;
+        REVERSE rows included, so give a reversible reaction's two rows the same factor
+        to keep detailed balance (module docstring of ``kinetics``).
+    constant_total_density : bool
+        Isobaric expansion: hold the total density at its initial value while the
+        parcel's volume follows the change in the number of molecules (module docstring).
+    electron_density_profile : ElectronDensityProfile, (times_s, n_e_m3) or None
+        Prescribed electron density, piecewise linear, NaN = free; its times are restart
+        times (module docstring).
+    linear_solver : {"auto", "dense", "sparse"}
+        Linear algebra of the stepper (:func:`linear_solver_arrays`); the result's
+        ``linear_solver`` says which was used.
 
     Returns
     -------
@@ -613,7 +784,12 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
     if not (T_gas_K > 0.0 and math.isfinite(T_gas_K)):
         raise ValueError("T_gas_K must be a positive temperature")
     prof = as_field(field)
-    stops, seg_E0, seg_slope = segments(prof, t0, t1, breakpoints_s)
+    ne_prof = as_density_profile(electron_density_profile)
+    bps = list(np.atleast_1d(np.asarray(breakpoints_s, dtype=float)))
+    if ne_prof is not None:
+        bps += list(ne_prof.times_s)
+    stops, seg_E0, seg_slope = segments(prof, t0, t1, bps)
+    seg_ne = density_segments(ne_prof, stops)
 
     rtol_v = _vector(rtol, n, "rtol")
     if np.any(rtol_v <= 0.0):
@@ -627,6 +803,10 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
 
     charge = np.asarray(mech.charge, dtype=np.float64)
     e_idx = _electron_index(mech, electron_species)
+    if ne_prof is not None and e_idx < 0:
+        raise ValueError("electron_density_profile needs an electron species in the mechanism")
+    if seg_ne[0, 0] != 0.0:
+        y[e_idx] = seg_ne[0, 1]      # prescribed from the start: the profile's value
     heavy = np.ones(n, dtype=np.bool_)
     if e_idx >= 0:
         heavy[e_idx] = False
@@ -658,9 +838,16 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
     monitor = rebuild_table is not None and partner_idx.size > 0
 
     model = build_model(mech, T_gas_K, electron_table=table, loss_frequency_s=loss_frequency_s,
-                        loss_products=loss_products, source_m3_s=source_m3_s)
+                        loss_products=loss_products, source_m3_s=source_m3_s,
+                        rate_multipliers=rate_multipliers,
+                        constant_total_density=constant_total_density,
+                        electron_species=electron_species)
     cond = model[4]
     cond[1:4] = (stops[0], seg_E0[0], seg_slope[0])
+    cond[COND_ELECTRON] = float(e_idx)
+    cond[COND_PRESCRIBED] = seg_ne[0, 0]
+    cond[COND_ELECTRON_SLOPE] = seg_ne[0, 2]
+    sp, solver_name = linear_solver_arrays(model, linear_solver)
 
     step_mode = t_eval_s is None
     if step_mode:
@@ -678,8 +865,12 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
     out_R = np.zeros((cap, n_r))
     out_L = np.zeros((cap, n))
     out_cond = np.zeros((cap, 3))
+    out_ext = np.zeros((cap, 2))
+    out_Rp = np.zeros((cap, n_r))
     R_cum = np.zeros(n_r)
     L_cum = np.zeros(n)
+    cum = np.zeros(2)
+    Rp_cum = np.zeros(n_r)
     clipped = np.zeros(n)
 
     fst = np.zeros(_N_F)
@@ -704,13 +895,15 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
     out_t[:n0] = t0
     out_y[:n0] = y
     out_cond[:n0] = start
+    out_ext[:n0, 0] = 1.0
     ist[_I_OUT] = n0
     fst[_F_QN] = charge_imbalance(y, charge, opts_f[_O_QN_FLOOR])
 
     while True:
-        status = _run(y, fst, ist, stops, seg_E0, seg_slope, model, rtol_v, atol_v, opts_f,
-                      opts_i, t_eval, out_t, out_y, out_R, out_L, out_cond, R_cum, L_cum,
-                      clipped, partner_idx, partner_ref, heavy, charge)
+        status = _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol_v, atol_v,
+                      opts_f, opts_i, t_eval, out_t, out_y, out_R, out_L, out_cond, out_ext,
+                      out_Rp, R_cum, L_cum, cum, Rp_cum, clipped, partner_idx, partner_ref,
+                      heavy, charge, sp)
         if status == BUFFER_FULL:
             grow = out_t.size
             out_t = np.concatenate([out_t, np.zeros(grow)])
@@ -718,6 +911,8 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
             out_R = np.concatenate([out_R, np.zeros((grow, n_r))])
             out_L = np.concatenate([out_L, np.zeros((grow, n))])
             out_cond = np.concatenate([out_cond, np.zeros((grow, 3))])
+            out_ext = np.concatenate([out_ext, np.zeros((grow, 2))])
+            out_Rp = np.concatenate([out_Rp, np.zeros((grow, n_r))])
             continue
         if status == TABLE_STALE:
             x = _mole_fractions(y, species, heavy, neutral)
@@ -740,7 +935,8 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
                         n_rejected=int(ist[_I_REJ]),
                         n_rejected_negative=int(ist[_I_REJ_NEG]), n_rhs=int(ist[_I_RHS]),
                         n_jac=int(ist[_I_JAC]), n_lu=int(ist[_I_LU]),
-                        n_rate_quadrature=int(ist[_I_QUAD]), n_table_rebuilds=n_rebuilds)
+                        n_rate_quadrature=int(ist[_I_QUAD]), n_table_rebuilds=n_rebuilds,
+                        n_lu_sparse=int(sp[10][0]), n_lu_dense_fallback=int(sp[10][1]))
     if status == SUCCESS:
         message = "success"
         f_t = f_h = math.nan
@@ -762,6 +958,11 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
         electron_drift_velocity_m_s=out_cond[:m, 2].copy(),
         electron_density_m3=(yk[:, e_idx].copy() if e_idx >= 0 else np.zeros(m)),
         integrated_rates_m3=out_R[:m].copy(), integrated_linear_m3=out_L[:m].copy(),
+        expansion_factor=out_ext[:m, 0].copy(),
+        integrated_electron_density_s_m3=out_ext[:m, 1].copy(),
+        integrated_rates_parcel_m3=(out_Rp[:m].copy() if constant_total_density
+                                    else out_R[:m].copy()),
+        linear_solver=solver_name,
         clipped_m3=clipped, quasi_neutrality=float(fst[_F_QN]), counters=counters,
         status=int(status), message=message, table_rebuild_times_s=tuple(rebuild_times),
         failure_time_s=f_t, failure_step_s=f_h, failure_species=f_s)

@@ -22,6 +22,53 @@ coefficients interpolated at the reduced field E/N(t) of the current time. The f
 piecewise linear in time; on one segment E/N(t) = E0 + slope (t - t0). Without an
 electron table the mean energy is NaN and the kernel takes Te = T_gas.
 
+Rate multipliers
+----------------
+Every rate coefficient is multiplied by ``rate_multipliers[j]`` (default 1) after the
+rate-law kernel has evaluated it, and so is dk/dn_M (the Jacobian stays exact). REVERSE
+rows get their own factor: a reversible reaction keeps detailed balance only when its
+forward and its reverse row get the same factor (sensitivity and uncertainty analysis
+usually want exactly that; scaling one row alone changes the equilibrium constant).
+
+Isobaric expansion (``cond[4] = 1``)
+-----------------------------------
+For a gas parcel at constant pressure and temperature the total density N = sum_k n_k
+stays at its initial value while reactions change the number of molecules: the parcel's
+volume V changes instead. With F_i the balance above (chemistry and linear terms) and
+D the set of diluted species::
+
+    dn_i/dt = F_i - n_i S / N_D      (i in D),    S = sum_k F_k,   N_D = sum_{k in D} n_k
+    d ln V / dt = S / N_D
+
+D is every species (then N_D = N), except on a segment with a prescribed electron
+density (below), where the electron row is imposed and D holds the other species. Either
+way sum_i dn_i/dt = 0 exactly. Jacobian of the added term (differentiating the line
+above; common practice, no source)::
+
+    J_ik -= delta_ik S / N_D  +  u_i c_k,   u_i = n_i [i in D],
+    c_k = (sum_m J_mk) / N_D - [k in D] S / N_D^2
+
+with J the Jacobian of F; ``u c^T`` is a dense rank-one term.
+
+Dense rank-one parts and ``JACOBIAN_SPLIT``
+-------------------------------------------
+Two parts of the Jacobian are dense but of rank one: the expansion term -u c^T above,
+and the third-body terms of collision partners with the default efficiency 1 (every
+species is a partner, so each three-body or falloff reaction fills whole rows): with
+eta_s = 1 + (eta_s - 1), they add w 1^T with w_q = sum_j nu_qj d r_j / d n_M. Mode
+``JACOBIAN_SPLIT`` leaves both out of ``J_out`` (which keeps the efficiency deviations
+eta_s - 1, the reactant factors, the linear terms and the diagonal -S/N_D) and writes
+``u``, ``c`` and ``w`` to ``work[7]``, ``work[8]``, ``work[9]``: the full Jacobian is
+``J_out + w 1^T - u c^T``. The sparse linear solver factors the sparse rest and adds
+the rank-one parts by the Woodbury formula (:mod:`plasmazero.numerics.linalg`).
+
+Prescribed electron density (``cond[6] = 1``)
+--------------------------------------------
+On a segment where the caller prescribes n_e(t) (linear in time there), the electron row
+``cond[5]`` of the system is d n_e/dt = ``cond[7]`` (the profile's slope, m^-3 s^-1) and
+its Jacobian row is zero; the electron column still feeds the other rows (ionization,
+attachment, recombination see the prescribed n_e).
+
 The model tuple
 ---------------
 :func:`evaluate` takes one opaque ``model`` tuple, built by
@@ -30,13 +77,16 @@ untouched (the smaller kernels take the pieces they need)::
 
     model = (mech, kernel_args, linear, table, cond, work)
     mech   = (reactant_index, net_index, net_coeff, third_body, efficiencies,
-              multiply_M)                         from the arrays of CompiledMechanism
+              multiply_M, rate_multipliers)       from the arrays of CompiledMechanism
     kernel_args                                   CompiledMechanism.kernel_args
     linear = (loss_frequency_s (n_s,), loss_products (n_s, n_s), source_m3_s (n_s,))
     table  = :func:`plasmazero.numerics.electrons.table_arrays`
-    cond   = float64 array [T_gas_K, segment_t0_s, segment_E_N0_Td, segment_slope_Td_s]
+    cond   = float64 array [T_gas_K, segment_t0_s, segment_E_N0_Td, segment_slope_Td_s,
+                            expansion (1/0), electron_index (-1: none),
+                            electron_prescribed (1/0), electron_slope_m3_s]
     work   = (k (n_r,), dk_dnM (n_r,), n_M (n_r,), r (n_r,), k_electron (n_p,),
-              n_M_row (n_tb,))                    scratch, overwritten by every call
+              n_M_row (n_tb,), scalars (4,) = [S / N_D, N_D, S, 0], u (n_s,),
+              c (n_s,), w (n_s,))                 scratch, overwritten by every call
 
 Gas energy equation
 -------------------
@@ -162,6 +212,15 @@ def add_jacobian(y, mech, linear, k, dk, nM, J_out):
     Differentiation of the mass-action law of the module docstring (common practice,
     no source).
     """
+    _jacobian_terms(y, mech, linear, k, dk, nM, J_out, J_out[0], False)
+
+
+@njit(cache=True)
+def _jacobian_terms(y, mech, linear, k, dk, nM, J_out, w_out, split):
+    """:func:`add_jacobian`; with ``split`` the third-body terms are taken relative to
+    efficiency 1: J gets d r / d n_M (eta_s - 1) and ``w_out[q]`` the sum of the
+    net-coefficient-weighted d r / d n_M of row q, so that the full Jacobian is
+    ``J_out + w_out 1^T`` (a dense rank-one part, module docstring)."""
     reac = mech[0]
     net = mech[1]
     coef = mech[2]
@@ -206,8 +265,13 @@ def add_jacobian(y, mech, linear, k, dk, nM, J_out):
         dr_dM *= P
         if dr_dM == 0.0:
             continue
+        if split:
+            for c in range(n_net):
+                q = net[j, c]
+                if q >= 0:
+                    w_out[q] += coef[j, c] * dr_dM
         for s in range(n):
-            e = eff[b, s]
+            e = eff[b, s] - 1.0 if split else eff[b, s]
             if e == 0.0:
                 continue
             v = dr_dM * e
@@ -225,10 +289,50 @@ def add_jacobian(y, mech, linear, k, dk, nM, J_out):
                     J_out[m, i] += Pm[i, m] * nu[i]
 
 
+def jacobian_pattern(model, split=False):
+    """Structural non-zeros of the Jacobian, bool (n_s, n_s), from the stoichiometry.
+
+    Entry (q, s) is set when species s is a reactant of a reaction whose net species
+    include q, or a collision partner (non-zero efficiency) of a third-body or falloff
+    reaction with net species q; the linear terms add (i, i) and (m, i) for
+    ``loss_products[i, m] != 0``; the diagonal is always set (it carries 1/(gamma h) and
+    the diagonal part of the expansion term). The dense rank-one part of the expansion
+    term is never included. With ``split``: the pattern of the ``JACOBIAN_SPLIT``
+    Jacobian (module docstring), where a collision partner counts only when its
+    efficiency differs from 1.
+    """
+    mech, _, linear, _, _, _ = model
+    reac, net, _, third_body, eff = mech[0], mech[1], mech[2], mech[3], mech[4]
+    n = linear[0].shape[0]
+    pat = np.eye(n, dtype=np.bool_)
+    for j in range(reac.shape[0]):
+        rows = net[j][net[j] >= 0]
+        if rows.size == 0:
+            continue
+        cols = reac[j][reac[j] >= 0]
+        if third_body[j] >= 0:
+            base = 1.0 if split else 0.0
+            cols = np.r_[cols, np.flatnonzero(eff[third_body[j]] != base)]
+        pat[np.ix_(rows, cols)] = True
+    nu, P = linear[0], linear[1]
+    lost = nu != 0.0
+    pat |= (P.T != 0.0) & lost[None, :]
+    return pat
+
+
 #: what :func:`evaluate` computes
 RATES = 0
 RHS = 1
 JACOBIAN = 2
+#: the Jacobian without the dense rank-one part of the expansion term (u, c in work)
+JACOBIAN_SPLIT = 3
+
+#: slots of ``cond`` (module docstring)
+COND_EXPANSION = 4
+COND_ELECTRON = 5
+COND_PRESCRIBED = 6
+COND_ELECTRON_SLOPE = 7
+COND_SIZE = 8
 
 
 @njit(cache=True)
@@ -248,12 +352,14 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode):
         See the module docstring; ``work`` receives k, dk/dn_M, n_M, the rates r and the
         electron coefficients.
     f_out : ndarray (n_s,)
-        Output (``mode >= RHS``): dn/dt, m^-3 s^-1.
+        Output (``mode >= RHS``): dn/dt, m^-3 s^-1 (with the expansion term and the
+        prescribed electron row when ``cond`` asks for them).
     J_out : ndarray (n_s, n_s)
-        Output (``mode == JACOBIAN``): d f / d y, s^-1. The rate coefficients' dependence
+        Output (``mode >= JACOBIAN``): d f / d y, s^-1. The rate coefficients' dependence
         on the field (time) is not part of J; the stepper takes it through d f / d t.
+        ``JACOBIAN_SPLIT`` leaves out the rank-one part -u c^T of the expansion term.
     mode : int
-        ``RATES`` (only ``work[3]`` = r), ``RHS`` or ``JACOBIAN``.
+        ``RATES`` (only ``work[3]`` = r), ``RHS``, ``JACOBIAN`` or ``JACOBIAN_SPLIT``.
 
     Returns
     -------
@@ -288,6 +394,10 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode):
                                        E_N_Td, k_el)
     Tg = cond[0]
     rate_coefficients(kernel_args, Tg, Tg, E_N_Td, mean_eV, k_el, nM, k, dk)
+    mult = mech[6]
+    for j in range(k.shape[0]):
+        k[j] *= mult[j]
+        dk[j] *= mult[j]
     reaction_rates(y, mech, k, nM, r)
     if mode == RATES:
         return mean_eV, drift
@@ -304,12 +414,64 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode):
             if s >= 0:
                 f_out[s] += coef[j, a] * rj
     add_linear_terms(y, linear, f_out)
-    # ENERGY EQUATION: the gas-temperature right-hand side would be appended here.
-    if mode == JACOBIAN:
+    e = int(cond[COND_ELECTRON])
+    prescribed = cond[COND_PRESCRIBED] != 0.0 and e >= 0
+    if prescribed:
+        f_out[e] = cond[COND_ELECTRON_SLOPE]
+    expand = cond[COND_EXPANSION] != 0.0
+    scal = work[6]
+    g = 0.0
+    n_D = 0.0
+    if expand:
+        sig = 0.0
         for i in range(n_s):
+            sig += f_out[i]
+            if not (prescribed and i == e):
+                n_D += y[i]
+        g = sig / n_D if n_D > 0.0 else 0.0
+        scal[0] = g
+        scal[1] = n_D
+        scal[2] = sig
+        for i in range(n_s):
+            if not (prescribed and i == e):
+                f_out[i] -= y[i] * g
+    # ENERGY EQUATION: the gas-temperature right-hand side would be appended here.
+    if mode >= JACOBIAN:
+        split = mode == JACOBIAN_SPLIT
+        w = work[9]
+        for i in range(n_s):
+            w[i] = 0.0
             for m in range(n_s):
                 J_out[i, m] = 0.0
-        add_jacobian(y, mech, linear, k, dk, nM, J_out)
+        _jacobian_terms(y, mech, linear, k, dk, nM, J_out, w, split)
+        if prescribed:
+            w[e] = 0.0
+            for m in range(n_s):
+                J_out[e, m] = 0.0
+        if expand:
+            u = work[7]
+            c = work[8]
+            inv = 1.0 / n_D if n_D > 0.0 else 0.0
+            w_sum = 0.0
+            for i in range(n_s):
+                w_sum += w[i]
+            for m in range(n_s):
+                c[m] = w_sum
+            for i in range(n_s):
+                for m in range(n_s):
+                    c[m] += J_out[i, m]
+            for m in range(n_s):
+                diluted = not (prescribed and m == e)
+                c[m] = c[m] * inv - (g * inv if diluted else 0.0)
+                u[m] = y[m] if diluted else 0.0
+                if diluted:
+                    J_out[m, m] -= g
+            if mode == JACOBIAN:
+                for i in range(n_s):
+                    ui = u[i]
+                    if ui != 0.0:
+                        for m in range(n_s):
+                            J_out[i, m] -= ui * c[m]
         # ENERGY EQUATION: the temperature row and column would be filled here.
     return mean_eV, drift
 

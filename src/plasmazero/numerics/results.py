@@ -60,6 +60,11 @@ class Counters:
         Rate evaluations at quadrature nodes for the integrated reaction rates.
     n_table_rebuilds : int
         Calls of ``rebuild_table``.
+    n_lu_sparse : int
+        Factorisations done by the sparse LU (included in ``n_lu``).
+    n_lu_dense_fallback : int
+        Steps whose sparse factorisation was refused (tiny pivot, growth, Sherman-Morrison
+        denominator) and redone densely (included in ``n_lu``).
     """
 
     n_steps: int = 0
@@ -71,6 +76,8 @@ class Counters:
     n_lu: int = 0
     n_rate_quadrature: int = 0
     n_table_rebuilds: int = 0
+    n_lu_sparse: int = 0
+    n_lu_dense_fallback: int = 0
 
 
 @dataclass(frozen=True)
@@ -120,6 +127,17 @@ class KineticsResult:
         Time reached and last step size tried (NaN on success).
     failure_species : str
         Species with the largest scaled error in the last rejected attempt ("" on success).
+    expansion_factor : ndarray (n_t,)
+        phi(t) = V(t) / V(t0) of the gas parcel with ``constant_total_density``
+        (exp of the integral of S/N dt); ones otherwise.
+    integrated_electron_density_s_m3 : ndarray (n_t,)
+        Cumulative integral of the electron density, s m^-3 (zeros without electrons).
+    integrated_rates_parcel_m3 : ndarray (n_t, n_r)
+        Cumulative integral of r_j phi dt: reactions per initial volume, m^-3 (molar
+        bookkeeping of an expanding parcel); equal to ``integrated_rates_m3`` when
+        ``constant_total_density`` is off.
+    linear_solver : str
+        "dense" or "sparse": the linear algebra the stepper used.
     """
 
     species: tuple
@@ -142,6 +160,10 @@ class KineticsResult:
     failure_time_s: float = float("nan")
     failure_step_s: float = float("nan")
     failure_species: str = ""
+    expansion_factor: np.ndarray = None
+    integrated_electron_density_s_m3: np.ndarray = None
+    integrated_rates_parcel_m3: np.ndarray = None
+    linear_solver: str = ""
 
     @property
     def success(self):

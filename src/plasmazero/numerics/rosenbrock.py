@@ -37,8 +37,8 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-from .kinetics import RHS, evaluate, field_at
-from .linalg import lu_factor, lu_solve
+from .kinetics import COND_EXPANSION, RHS, evaluate, field_at
+from .linalg import lu_factor, lu_solve, sparse_factor, sparse_solve
 
 N_STAGES = 6
 #: order of the method and of its embedded error estimate
@@ -126,8 +126,14 @@ def standard_form():
     return {"alpha": alpha, "gamma": gam, "b": b, "b_hat": b_hat, "dense": dense}
 
 
+#: smallest |det| of the 2 x 2 Woodbury capacitance matrix relative to the sum of the
+#: magnitudes of its two terms (a choice of this code, no source): below it the step is
+#: factored densely
+WOODBURY_TOLERANCE = 1e-8
+
+
 @njit(cache=True)
-def rodas4_step(t, y, h, f0, J, fdt, use_fdt, model, lu, piv, U, ystage, fstage, ynew):
+def rodas4_step(t, y, h, f0, J, fdt, use_fdt, model, lu, piv, U, ystage, fstage, ynew, sp):
     """One RODAS4 step: stage vectors ``U`` (6, n) and the new solution ``ynew``.
 
     Parameters
@@ -151,6 +157,13 @@ def rodas4_step(t, y, h, f0, J, fdt, use_fdt, model, lu, piv, U, ystage, fstage,
         segment in ``model[4]``).
     lu, piv, U, ystage, fstage, ynew : ndarray
         Work arrays (n, n), (n,), (6, n), (n,), (n,); ``ynew`` (n,) is the output.
+    sp : tuple
+        Linear solver (``integrate.linear_solver_arrays``): ``sp[0][0] == 1`` selects the
+        sparse LU on the filled pattern, otherwise the dense LU. With the sparse LU, ``J``
+        is the ``JACOBIAN_SPLIT`` Jacobian of :mod:`plasmazero.numerics.kinetics`: the
+        rank-one parts w 1^T (third bodies, when ``sp[0][1] == 1``) and -u c^T
+        (expansion) are added by the Woodbury formula (:mod:`plasmazero.numerics.linalg`).
+        ``sp[10]`` counts [sparse factorisations, dense fallbacks].
 
     Returns
     -------
@@ -166,13 +179,70 @@ def rodas4_step(t, y, h, f0, J, fdt, use_fdt, model, lu, piv, U, ystage, fstage,
     """
     n = y.shape[0]
     inv_gh = 1.0 / (GAMMA * h)
-    for i in range(n):
-        for m in range(n):
-            lu[i, m] = -J[i, m]
-        lu[i, i] += inv_gh
-    info = lu_factor(lu, piv)
-    if info != 0:
-        return info
+    configured = sp[0][0] == 1
+    # rank-one parts of M = I/(gamma h) - J_split + U V^T: U = [-w, u], V = [1, c]
+    tb = configured and sp[0][1] == 1
+    ex = configured and model[4][COND_EXPANSION] != 0.0
+    u = model[5][7]
+    c = model[5][8]
+    w = model[5][9]
+    order, indptr, indices, diag, orow, ocol, val, wv, Z, stats = (
+        sp[1], sp[2], sp[3], sp[4], sp[5], sp[6], sp[7], sp[8], sp[9], sp[10])
+    sparse = configured
+    C11 = 1.0
+    C12 = 0.0
+    C21 = 0.0
+    C22 = 1.0
+    det = 1.0
+    if sparse:
+        for p in range(val.shape[0]):
+            val[p] = -J[orow[p], ocol[p]]
+        for k in range(n):
+            val[diag[k]] += inv_gh
+        info = sparse_factor(indptr, indices, diag, val, wv)
+        if info == 0 and (tb or ex):
+            # Woodbury: Z = A^{-1} U, capacitance matrix I + V^T Z
+            if tb:
+                for i in range(n):
+                    Z[0, i] = -w[i]
+                sparse_solve(indptr, indices, diag, val, order, Z[0], wv)
+                for i in range(n):
+                    C11 += Z[0, i]
+            if ex:
+                for i in range(n):
+                    Z[1, i] = u[i]
+                sparse_solve(indptr, indices, diag, val, order, Z[1], wv)
+                for i in range(n):
+                    C22 += c[i] * Z[1, i]
+            if tb and ex:
+                for i in range(n):
+                    C12 += Z[1, i]
+                    C21 += c[i] * Z[0, i]
+            det = C11 * C22 - C12 * C21
+            # relative to its two terms: invariant under rescaling u -> u/a, c -> a c
+            if not (abs(det) > WOODBURY_TOLERANCE * (abs(C11 * C22) + abs(C12 * C21))):
+                info = n + 2
+        if info == 0:
+            stats[0] += 1
+        else:
+            sparse = False
+            stats[1] += 1
+    if not sparse:
+        for i in range(n):
+            for m in range(n):
+                lu[i, m] = -J[i, m]
+            if tb:
+                wi = w[i]
+                for m in range(n):
+                    lu[i, m] -= wi
+            if ex:
+                ui = u[i]
+                for m in range(n):
+                    lu[i, m] += ui * c[m]
+            lu[i, i] += inv_gh
+        info = lu_factor(lu, piv)
+        if info != 0:
+            return info
     inv_h = 1.0 / h
     for s in range(N_STAGES):
         if s == 0:
@@ -192,7 +262,26 @@ def rodas4_step(t, y, h, f0, J, fdt, use_fdt, model, lu, piv, U, ystage, fstage,
             if use_fdt:
                 v += h * D[s] * fdt[i]
             U[s, i] = v
-        lu_solve(lu, piv, U[s])
+        if sparse:
+            us = U[s]
+            sparse_solve(indptr, indices, diag, val, order, us, wv)
+            if tb or ex:
+                t1 = 0.0
+                t2 = 0.0
+                for i in range(n):
+                    if tb:
+                        t1 += us[i]
+                    if ex:
+                        t2 += c[i] * us[i]
+                s1 = (C22 * t1 - C12 * t2) / det
+                s2 = (C11 * t2 - C21 * t1) / det
+                for i in range(n):
+                    if tb:
+                        us[i] -= Z[0, i] * s1
+                    if ex:
+                        us[i] -= Z[1, i] * s2
+        else:
+            lu_solve(lu, piv, U[s])
     for i in range(n):
         v = y[i]
         for s in range(N_STAGES):
