@@ -23,6 +23,14 @@ from plasmazero.data.errors import InputError
 COMMANDS = {
     "swarm": "electron swarm parameters and rate coefficients versus E/N",
     "check": "validate a mechanism file and summarise it",
+    "run": "run a discharge scenario and write its result file",
+    "demo": "run the shipped (invented) packed-bed CO2/H2 demo",
+    "examples": "list the shipped example scenarios",
+    "init": "write a shipped example scenario into a folder to edit",
+    "report": "print summary, bed feed and pathways of a result file",
+    "export": "export the bed feed of a result (CSV, YAML, JSON)",
+    "plot": "plot a result file into PNG figures",
+    "scan": "scan a scenario over parameters (grid or Latin hypercube; local or Dask)",
 }
 
 
