@@ -30,6 +30,7 @@ import pytest
 from plasmazero.boltzmann import build_mixture, solve_swarm
 from plasmazero.data.cross_sections import load_cross_sections
 from plasmazero.data.shipped import shipped_cross_section
+from reference.thermal_mobility import thermal_reduced_mobility
 
 T_GAS_K = 293.0
 K_B = 1.380649e-23              # J/K (CODATA 2018, exact)
@@ -109,27 +110,7 @@ def test_zero_field_mobility_quadrature(mixture, low):
     """N mu at 1 Td equals the Maxwellian quadrature over the set (independent computation as in
     test_swarm_h2.py: sigma_m = elastic + inelastic + detailed-balance reverses; Huxley &
     Crompton 1974, ch. 3). Tolerance 2 %."""
-    kT = K_B * T_GAS_K / E_CHARGE
-    # populations of the Boltzmann model of the mixture (plasmazero.physics.boltzmann.mixture):
-    # upper level p_k = w_k exp(-u_k/kT)/Z, Z = 1 + sum_k w_k exp(-u_k/kT), forward processes on
-    # the ground fraction 1 - sum_k p_k, reverse factor p_k/w_k (Klein & Rosseland 1921)
-    boltz = {p.id: p.weight_ratio * math.exp(-p.threshold_eV / kT)
-             for p in mixture.processes if p.weight_ratio is not None}
-    z = 1.0 + sum(boltz.values())
-    ground = 1.0 - sum(boltz.values()) / z
-    u = np.linspace(1e-6, 40 * kT, 40001)
-    sig = np.zeros_like(u)
-    for p in mixture.processes:
-        if p.kind == "momentum_transfer":
-            sig += p.sigma_m2(u)
-        else:
-            sig += ground * p.sigma_m2(u)
-            if p.id in boltz:
-                rev = boltz[p.id] / z / p.weight_ratio
-                sig += rev * (u + p.threshold_eV) / u * p.sigma_m2(u + p.threshold_eV)
-    F = 2.0 / math.sqrt(math.pi) * kT ** -1.5 * np.exp(-u / kT)
-    gamma = math.sqrt(2.0 * E_CHARGE / M_E)
-    muN = gamma / (3.0 * kT) * np.trapezoid(u * F / sig, u)
+    muN = thermal_reduced_mobility(mixture.processes, T_GAS_K)   # tests/reference/thermal_mobility.py
     assert low.reduced_mobility_1_mVs[0] == pytest.approx(muN, rel=0.02)
 
 

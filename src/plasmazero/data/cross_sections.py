@@ -26,7 +26,6 @@ Boltzmann solver forms what it needs from either (Reid 1979, Aust. J. Phys. 32, 
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, field
 from pathlib import Path
 

@@ -52,7 +52,6 @@ the key path and the problem (:class:`~plasmazero.data.errors.InputError`).
 
 from __future__ import annotations
 
-import math
 from pathlib import Path
 
 from .errors import InputError, format_problem
