@@ -100,12 +100,15 @@ import math
 import numpy as np
 from numba import njit
 
+from ..physics import ratelaws
+
 from .controller import error_norm, next_step_accepted, next_step_rejected
 from .electrons import ElectronTable, interpolate_table, table_arrays
 from .field import as_density_profile, as_field, density_segments, segments
 from .kinetics import (COND_ELECTRON, COND_ELECTRON_SLOPE, COND_EXPANSION, COND_PRESCRIBED,
                        COND_SIZE, JACOBIAN, JACOBIAN_SPLIT, RATES, RHS, charge_imbalance,
-                       evaluate, field_at, jacobian_pattern, linear_terms, net_stoichiometry)
+                       clear_rate_cache, evaluate, field_at, jacobian_pattern, linear_terms,
+                       net_stoichiometry, rate_cache)
 from .linalg import sparse_symbolic
 from .results import (BUFFER_FULL, CAUSE_ERROR, CAUSE_NEGATIVE, CAUSE_NON_FINITE,
                       CAUSE_SINGULAR, CAUSE_TEXT, MAX_STEPS, NON_FINITE_STATE, STATUS_TEXT,
@@ -625,9 +628,10 @@ def build_model(mech, T_gas_K, *, electron_table=None, loss_frequency_s=None,
     cond[0:4] = (float(T_gas_K), 0.0, float(E_N_Td), 0.0)
     cond[COND_EXPANSION] = 1.0 if constant_total_density else 0.0
     cond[COND_ELECTRON] = float(_electron_index(mech, electron_species))
-    work = (np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_p),
-            np.zeros(n_tb), np.zeros(4), np.zeros(n), np.zeros(n), np.zeros(n))
     kernel_args = tuple(mech.kernel_args)
+    work = (np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_p),
+            np.zeros(n_tb), np.zeros(4), np.zeros(n), np.zeros(n), np.zeros(n)) + \
+        rate_cache(kernel_args, ratelaws)
     return (mech_arrays, kernel_args, linear, table_arrays(table, n_p), cond, work)
 
 
@@ -922,6 +926,7 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
             n_rebuilds += 1
             rebuild_times.append(float(fst[_F_T]))
             model = model[:3] + (table_arrays(table, n_p),) + model[4:]
+            clear_rate_cache(model[5])
             # the new table was built for x: that is the new reference
             names = [s_ for s_ in table.mole_fractions if s_ in x]
             if names:

@@ -86,7 +86,26 @@ untouched (the smaller kernels take the pieces they need)::
                             electron_prescribed (1/0), electron_slope_m3_s]
     work   = (k (n_r,), dk_dnM (n_r,), n_M (n_r,), r (n_r,), k_electron (n_p,),
               n_M_row (n_tb,), scalars (4,) = [S / N_D, N_D, S, 0], u (n_s,),
-              c (n_s,), w (n_s,))                 scratch, overwritten by every call
+              c (n_s,), w (n_s,),                 scratch, overwritten by every call
+              cache ...)                          the rate-coefficient cache (below)
+
+Rate-coefficient cache
+----------------------
+Most rate coefficients of a plasma mechanism do not change between right-hand-side
+evaluations: at a fixed gas temperature the thermal rows (Arrhenius, Landau-Teller) are
+constants, the electron rows (electron impact, electron-temperature Arrhenius,
+expressions) change only with E/N, and only the falloff rows follow the third-body
+density. REVERSE rows are their forward row times 1/Kc(T_gas) (detailed balance, as in
+:mod:`plasmazero.physics.ratelaws`). :func:`evaluate` therefore calls the rate-law kernel
+(i) for all rows, and once more with every forward row set to k = 1 to obtain 1/Kc of
+each reverse row, whenever the gas temperature changes (or the cache was cleared); (ii)
+for the electron rows alone whenever E/N changes; (iii) for the falloff rows alone at
+every call. The values are those of the kernel (same code, same inputs), so the cache
+changes no result. :func:`clear_rate_cache` must be called when the electron table of
+the model is replaced. ``work[10:16]`` = (cache scalars [T, E/N, valid], (electron rows,
+falloff rows, reverse rows, their forward rows), kernel arguments of the electron rows,
+of the falloff rows, of all rows with unit forward rows, (k of the constant rows, k and
+dk/dn_M of the electron rows, their n_M, k, dk/dn_M and n_M of the falloff rows, 1/Kc)).
 
 Gas energy equation
 -------------------
@@ -335,12 +354,91 @@ COND_ELECTRON_SLOPE = 7
 COND_SIZE = 8
 
 
+#: kernel-argument entries that are per reaction row (``compiled.KERNEL_ARGS`` 0..5)
+_ROW_ARGS = 6
+
+
+def rate_cache(kernel_args, law_codes):
+    """The rate-coefficient cache entries ``work[10:16]`` (module docstring).
+
+    Parameters
+    ----------
+    kernel_args : tuple
+        ``CompiledMechanism.kernel_args``.
+    law_codes : module
+        :mod:`plasmazero.physics.ratelaws` (its law constants).
+    """
+    rl = law_codes
+    law = np.asarray(kernel_args[0])
+    ipar = np.asarray(kernel_args[2])
+    n_r = law.shape[0]
+    electron = np.flatnonzero(np.isin(law, (rl.ELECTRON_IMPACT, rl.ELECTRON_ARRHENIUS,
+                                            rl.EXPRESSION))).astype(np.int64)
+    falloff = np.flatnonzero(np.isin(law, (rl.FALLOFF_LINDEMANN, rl.FALLOFF_TROE))).astype(np.int64)
+    reverse = np.flatnonzero(law == rl.REVERSE).astype(np.int64)
+    forward = np.ascontiguousarray(ipar[reverse, 0], dtype=np.int64)
+
+    def subset(rows):
+        return tuple(np.ascontiguousarray(a[rows]) if i < _ROW_ARGS else a
+                     for i, a in enumerate(kernel_args))
+
+    unit = [np.array(a, copy=True) if i < 2 else a for i, a in enumerate(kernel_args)]
+    unit[0][forward] = rl.ARRHENIUS
+    unit[1][forward, 0:3] = (1.0, 0.0, 0.0)
+    floats = (np.zeros(n_r), np.zeros(electron.size), np.zeros(electron.size),
+              np.zeros(electron.size), np.zeros(falloff.size), np.zeros(falloff.size),
+              np.zeros(falloff.size), np.zeros(reverse.size))
+    return (np.array([math.nan, math.nan, 0.0]), (electron, falloff, reverse, forward),
+            subset(electron), subset(falloff), tuple(unit), floats)
+
+
+@njit(cache=True)
+def clear_rate_cache(work):
+    """Invalidate the rate-coefficient cache (after a new electron table or temperature)."""
+    work[10][2] = 0.0
+
+
+@njit(cache=True)
+def _cached_rate_coefficients(kernel_args, work, Tg, E_N_Td, mean_eV, k_el, nM, k, dk):
+    """Every rate coefficient and dk/dn_M through the cache of the module docstring."""
+    cf = work[10]
+    electron, falloff, reverse, forward = work[11]
+    k_const, kE, dkE, nME, kF, dkF, nMF, inv_Kc = work[15]
+    if cf[2] == 0.0 or cf[0] != Tg:
+        rate_coefficients(kernel_args, Tg, Tg, E_N_Td, mean_eV, k_el, nM, k_const, dk)
+        rate_coefficients(work[14], Tg, Tg, E_N_Td, mean_eV, k_el, nM, k, dk)
+        for q in range(reverse.shape[0]):
+            inv_Kc[q] = k[reverse[q]]
+        cf[0] = Tg
+        cf[1] = math.nan
+        cf[2] = 1.0
+    if not (cf[1] == E_N_Td):
+        rate_coefficients(work[12], Tg, Tg, E_N_Td, mean_eV, k_el, nME, kE, dkE)
+        cf[1] = E_N_Td
+    for q in range(falloff.shape[0]):
+        nMF[q] = nM[falloff[q]]
+    rate_coefficients(work[13], Tg, Tg, E_N_Td, mean_eV, k_el, nMF, kF, dkF)
+    for j in range(k.shape[0]):
+        k[j] = k_const[j]
+        dk[j] = 0.0
+    for q in range(electron.shape[0]):
+        k[electron[q]] = kE[q]
+    for q in range(falloff.shape[0]):
+        k[falloff[q]] = kF[q]
+        dk[falloff[q]] = dkF[q]
+    for q in range(reverse.shape[0]):
+        j = reverse[q]
+        f = forward[q]
+        k[j] = k[f] * inv_Kc[q]
+        dk[j] = dk[f] * inv_Kc[q]
+
+
 @njit(cache=True)
 def evaluate(E_N_Td, y, model, f_out, J_out, mode):
     """Rates, right-hand side and Jacobian of the species balances at one state.
 
     The only kernel that calls the rate-law kernel (compile time: every caller links it
-    once).
+    once), through the rate-coefficient cache of the module docstring.
 
     Parameters
     ----------
@@ -393,7 +491,7 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode):
     mean_eV, drift = interpolate_table(table[0], table[1], table[2], table[3], table[4],
                                        E_N_Td, k_el)
     Tg = cond[0]
-    rate_coefficients(kernel_args, Tg, Tg, E_N_Td, mean_eV, k_el, nM, k, dk)
+    _cached_rate_coefficients(kernel_args, work, Tg, E_N_Td, mean_eV, k_el, nM, k, dk)
     mult = mech[6]
     for j in range(k.shape[0]):
         k[j] *= mult[j]

@@ -93,6 +93,8 @@ class DischargeSetup:
     loss_frequency_s: np.ndarray | None
     loss_products: np.ndarray | None
     category: dict = field(default_factory=dict)
+    #: electron table and Boltzmann table of the feed, with the filament field on the grid
+    feed_tables: tuple = ()
 
 
 @dataclass(frozen=True)
@@ -280,6 +282,8 @@ def prepare(scenario, file=None):
         E_N = breakdown
     else:
         E_N = float(dis["E_N_Td"])
+    if not np.any(swarm.E_N_Td == E_N):
+        table, swarm = et.build_table(pmap, compiled, fractions, excited, T, extra_E_N_Td=(E_N,))
     power = rx.absorbed_power_W(scenario, breakdown if math.isfinite(breakdown) else None, file)
     kJ_L, eV = rx.sei(power, feed)
     tau = rx.residence_time_s(scenario)
@@ -313,7 +317,7 @@ def prepare(scenario, file=None):
         residence_time_s=tau, power_W=power, sei_kJ_L=kJ_L, sei_eV_per_molecule=eV,
         energy_density_J_m3=u, E_N_Td=E_N, breakdown_E_N_Td=breakdown, pulse_starts_s=starts,
         pulse_duration_s=d, y0_m3=y0, loss_frequency_s=nu, loss_products=prod,
-        category=_categories(loaded, compiled))
+        category=_categories(loaded, compiled), feed_tables=(table, swarm))
 
 
 def pulse_shape(shape, duration_s, n_nodes=GAUSSIAN_NODES):
@@ -366,8 +370,7 @@ def run(setup, *, rate_multipliers=None, progress=None, max_steps=2_000_000):
     solver = sc["solver"]
     atol = max(solver["atol_floor_m3"], 1e-20 * N)
     y = setup.y0_m3.copy()
-    fractions, excited, _ = et.partner_fractions(pmap, y)
-    table, swarm = et.build_table(pmap, mech, fractions, excited, T, extra_E_N_Td=(setup.E_N_Td,))
+    table, swarm = setup.feed_tables
     rebuilds = 1
     i_pulse_en = int(np.argmin(np.abs(swarm.E_N_Td - setup.E_N_Td)))
     eedf_samples = [("pulse (feed composition)", setup.E_N_Td, swarm.energy_eV[i_pulse_en].copy(),
