@@ -44,7 +44,8 @@ section "Scenario files")::
     bed:
       downstream_transit_s: 0.0    # afterglow time between the discharge exit and the catalyst
     solver: {rtol: 1.0e-5, atol_floor_m3: 1.0e6}
-    output: {eedf_samples: 8}
+    output: {eedf_samples: 8}      # EEDFs kept in the result: feed, afterglow, at each
+                                   # rebuild of the electron table (composition), and exit
 
 Validation rejects unknown keys and impossible values with one line naming the file,
 the key path and the problem (:class:`~plasmazero.data.errors.InputError`).

@@ -376,6 +376,8 @@ def run(setup, *, rate_multipliers=None, progress=None, max_steps=2_000_000):
     eedf_samples = [("pulse (feed composition)", setup.E_N_Td, swarm.energy_eV[i_pulse_en].copy(),
                      swarm.eedf_eV_m3_2[i_pulse_en].copy()),
                     ("afterglow (feed composition)", 0.0, swarm.energy_eV[0].copy(), swarm.eedf_eV_m3_2[0].copy())]
+    # EEDFs kept: feed pulse, afterglow, each rebuilt table (up to the cap), exit
+    max_samples = max(3, sc["output"]["eedf_samples"]) - 1
     d = setup.pulse_duration_s
     if dis["mode"] == "filaments":
         shape_s, shape_v = pulse_shape(dis["pulse_shape"], d)
@@ -438,6 +440,10 @@ def run(setup, *, rate_multipliers=None, progress=None, max_steps=2_000_000):
         if et.partner_drift(table.mole_fractions, x_now) > TABLE_DRIFT:
             table, swarm = et.build_table(pmap, mech, x_now, exc_now, T, extra_E_N_Td=(setup.E_N_Td,))
             rebuilds += 1
+            if len(eedf_samples) < max_samples:
+                k = int(np.argmin(np.abs(swarm.E_N_Td - setup.E_N_Td)))
+                eedf_samples.append((f"pulse at t = {a:.4g} s (composition then)", setup.E_N_Td,
+                                     swarm.energy_eV[k].copy(), swarm.eedf_eV_m3_2[k].copy()))
         _, _, w = table.at(setup.E_N_Td)
         phi_pulse = phi   # the parcel's expansion at the pulse (electron density per current volume)
         # energy still owed to the parcel up to this pulse, and the expansion expected within
@@ -471,9 +477,9 @@ def run(setup, *, rate_multipliers=None, progress=None, max_steps=2_000_000):
             _, y = step(y, a + d, t_e, None, None, False)
         if progress is not None:
             progress(t_e, tau)
-    last_swarm = swarm
-    eedf_samples.append(("pulse (exit composition)", setup.E_N_Td, last_swarm.energy_eV[i_pulse_en].copy(),
-                         last_swarm.eedf_eV_m3_2[i_pulse_en].copy()))
+    k = int(np.argmin(np.abs(swarm.E_N_Td - setup.E_N_Td)))
+    eedf_samples.append(("pulse (exit composition)", setup.E_N_Td, swarm.energy_eV[k].copy(),
+                         swarm.eedf_eV_m3_2[k].copy()))
     # downstream transit to a catalyst bed: afterglow without power or surface losses of the packing
     transit = sc["bed"]["downstream_transit_s"]
     R_down = np.zeros(n_r)
