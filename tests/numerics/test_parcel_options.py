@@ -75,6 +75,37 @@ def test_rate_multipliers_reach_k_dk_and_the_jacobian():
     assert np.max(np.abs(J - J_fd) / bound) < 1.0
 
 
+def test_rate_cache_returns_the_kernel_values():
+    # the cache of kinetics (constant rows once, electron rows per E/N, falloff rows per
+    # call, reverse rows through 1/Kc) against direct calls of the rate-law kernel
+    from plasmazero.physics.compiled import load_compiled_mechanism
+    from plasmazero.physics.ratelaws import rate_coefficients
+
+    mech = load_compiled_mechanism(EVERY_LAW)
+    table = systems.toy_table(columns=mech.electron_processes)
+    rng = np.random.default_rng(12)
+    n = mech.n_species
+    model = build_model(mech, 500.0, electron_table=table)
+    f = np.zeros(n)
+    J = np.zeros((n, n))
+    for i in range(40):
+        if i == 20:                       # a new table: the cache must be cleared
+            table = systems.toy_table(columns=mech.electron_processes, scale=3.0)
+            model = model[:3] + (build_model(mech, 500.0, electron_table=table)[3],) + model[4:]
+            kinetics.clear_rate_cache(model[5])
+        model[4][0] = rng.choice([500.0, 800.0])             # gas temperature changes too
+        E_N = rng.choice([0.0, 50.0, rng.uniform(1.0, 300.0)])
+        y = _random_state(rng, mech)
+        kinetics.evaluate(E_N, y, model, f, J, rng.choice([kinetics.RATES, kinetics.RHS]))
+        k_el, mean, _ = table.at(E_N)
+        nM = model[5][2].copy()
+        k = np.zeros(mech.n_reactions)
+        dk = np.zeros(mech.n_reactions)
+        rate_coefficients(mech.kernel_args, model[4][0], model[4][0], E_N, mean, k_el, nM, k, dk)
+        np.testing.assert_allclose(model[5][0], k, rtol=1e-13, atol=0.0)
+        np.testing.assert_allclose(model[5][1], dk, rtol=1e-13, atol=0.0)
+
+
 # ------------------------------------------------- Jacobian of expansion and prescribed n_e
 
 def _expansion_violations(mech, table, n_states, seed, drop_rank_one=False):

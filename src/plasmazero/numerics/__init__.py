@@ -2,7 +2,7 @@
 
 Modules (one concern each)::
 
-    linalg       dense LU with partial pivoting (numba)
+    linalg       dense LU with partial pivoting; sparse LU on the known pattern (numba)
     kinetics     mass-action right-hand side and analytic Jacobian on the mechanism arrays
     electrons    electron coefficient tables versus E/N and their interpolation
     rosenbrock   RODAS4 coefficients, one step, dense output

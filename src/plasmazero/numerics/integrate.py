@@ -84,6 +84,22 @@ Options for the discharge workflow
   the dense output of the electron density (no extra right-hand-side evaluations), for
   energy bookkeeping (energy per electron times this integral).
 
+Linear algebra
+--------------
+``linear_solver="auto"`` (default) picks the dense LU with partial pivoting or the sparse
+LU on the Jacobian pattern known from the stoichiometry (minimum-degree order, static
+pivots with a dense fallback per step, rank-one parts by Woodbury; see
+:mod:`plasmazero.numerics.linalg`). Sparse is chosen when the system has at least
+``SPARSE_MIN_SPECIES`` = 40 species and one sparse factorisation needs fewer than
+``SPARSE_FLOP_FRACTION`` = 1/4 of the n^3/3 multiply-adds of the dense one. Measured
+(``benchmarks/bench_kinetics.py --solvers`` and a direct timing of LU plus six solves on
+the invented chain mechanisms of 8 to 120 species): the indirect addressing of the
+sparse code costs about four times more per operation than the dense loops, so sparse
+wins below a quarter of the flops; below ~30 species both take a few microseconds and
+the timings are within noise. One RODAS4 step of the shipped CO2/H2 mechanism (57
+species, 12 % of the dense flops) took about 120 us sparse against 210 us dense. The
+choice is reported in ``KineticsResult.linear_solver``.
+
 References
 ----------
 Hairer, E. & Wanner, G. (1996), Solving Ordinary Differential Equations II, 2nd ed.,
@@ -638,7 +654,7 @@ def build_model(mech, T_gas_K, *, electron_table=None, loss_frequency_s=None,
 #: automatic choice of the linear solver (``linear_solver="auto"``): the sparse LU when
 #: the system has at least SPARSE_MIN_SPECIES species and one sparse factorisation needs
 #: fewer than SPARSE_FLOP_FRACTION of the n^3 / 3 multiply-adds of the dense one
-#: (measured in benchmarks/bench_kinetics.py --solvers; see linear_solver_arrays)
+#: (measured, see the module docstring "Linear algebra"; a choice of this code)
 SPARSE_MIN_SPECIES = 40
 SPARSE_FLOP_FRACTION = 0.25
 

@@ -32,12 +32,16 @@ work is done once per integration (:func:`sparse_symbolic`):
   elimination, each row scattered into a dense work vector), on the filled pattern in
   compressed rows; :func:`sparse_solve` does the permuted triangular solves.
 
-The expansion term of :mod:`plasmazero.numerics.kinetics` adds a dense rank-one part
--u c^T to J; the sparse path factors the rest and solves with the Sherman-Morrison
-formula (Sherman & Morrison 1950): with A the sparse part,
-(A + u c^T)^{-1} b = x - z (c.x) / (1 + c.z), x = A^{-1} b, z = A^{-1} u (one extra
-solve per factorisation, one dot product and one update per solve). Including the dense
-row and column in the pattern would instead fill the whole matrix.
+Two parts of J are dense but of rank one (:mod:`plasmazero.numerics.kinetics`, mode
+``JACOBIAN_SPLIT``): the third-body terms of collision partners with the default
+efficiency 1, w 1^T (every species is a partner, so each three-body reaction fills whole
+rows: with them in the pattern the shipped CO2/H2 mechanism's pattern is 85 % full and
+its LU 94 % of the dense work, without them 33 % and 12 %), and the expansion term
+-u c^T (a full matrix). The sparse path factors the rest, A, and adds both by the
+Woodbury formula (Woodbury 1950; Sherman & Morrison 1950 for rank one) with
+U = [-w, u], V = [1, c]: (A + U V^T)^{-1} b = x - Z (I + V^T Z)^{-1} V^T x, x = A^{-1} b,
+Z = A^{-1} U (two extra solves per factorisation, a 2 x 2 system and two updates per
+solve). Including the dense rows and column in the pattern would fill the matrix.
 
 References
 ----------
@@ -51,7 +55,8 @@ the minimum degree ordering algorithm, SIAM Review 31, 1-19. Duff, I. S., Erisma
 & Reid, J. K. (1986), Direct Methods for Sparse Matrices, Oxford University Press,
 chapters 7 and 9 (static pivoting on a fixed pattern). Sherman, J. & Morrison, W. J.
 (1950), Adjustment of an inverse matrix corresponding to a change in one element of a
-given matrix, Ann. Math. Stat. 21, 124-127.
+given matrix, Ann. Math. Stat. 21, 124-127. Woodbury, M. A. (1950), Inverting modified
+matrices, Memorandum Report 42, Statistical Research Group, Princeton University.
 """
 
 from __future__ import annotations
