@@ -159,7 +159,7 @@ def test_townsend_coefficients_are_consistent_with_the_rates(growth):
 
 
 def test_marching_matches_the_eliminations():
-    # the O(nnz) downward marching, the banded elimination and LAPACK solve one system alike
+    # the O(nnz) downward marching, the banded elimination and the sparse LU solve one system alike
     mix = build_mixture(_model_parts())
     forward, upper = level_populations(mix, 300.0, None)
     op = build_operator(mix, uniform_grid(40.0, 200), forward, upper)
@@ -172,13 +172,13 @@ def test_marching_matches_the_eliminations():
             zeros, zeros, op.loss, m, op.transfer_lo, op.transfer_glo, op.transfer_ghi)
     F_march = op_module.linear_solve(*args, 1, True, np.zeros((1, 1)), out)
     F_band = op_module.linear_solve(*args, 1, False, np.zeros((n, n)), out)
-    F_dense = op_module.linear_solve(*args, n, False, np.zeros((n, n)), out)  # LAPACK path
+    F_dense = op_module.linear_solve(*args, n, False, np.zeros((n, n)), out)  # sparse-LU path
     A = np.zeros((n, n))
     rhs = op_module.assemble(A, out[5], out[6], np.zeros(n + 1), np.zeros(n + 1), op.loss + 2e-15 * m,
                              op.transfer_lo, op.transfer_glo, op.transfer_ghi, m)
     F_numpy = np.linalg.solve(A, rhs)
     F_numpy /= np.sum(m * F_numpy)
-    for F in (F_band, F_dense, F_numpy):  # independent computations: elimination and LAPACK
+    for F in (F_band, F_dense, F_numpy):  # independent computations: elimination and SuperLU
         assert np.allclose(F_march, F, rtol=1e-9, atol=0)
 
 

@@ -80,7 +80,7 @@ carried down (all terms positive for the physical solution, so no cancellation g
 :func:`march`). Superelastic gains come from lower cells and add a lower band of width
 about u_k/du; the matrix is then assembled dense and factorised by Gaussian elimination
 with partial pivoting restricted to that band (cost ~ p n^2/2 for lower bandwidth p), or
-by LAPACK's dense LU for wide bands (threshold :data:`DENSE_LAPACK_BANDWIDTH_FRACTION`,
+by a sparse LU (SuperLU) for wide bands (threshold :data:`DENSE_LAPACK_BANDWIDTH_FRACTION`,
 chosen by measurement). The marching result is checked (finite, non-negative) and the
 elimination is used whenever the check fails.
 
@@ -105,11 +105,12 @@ from .constants import GAMMA_M_S_EV
 from .grid import eval_tables
 from .mixture import ATTACHMENT, EXCITATION, IONIZATION, TOTAL
 
-#: lower bandwidths above max(16, n/16) use LAPACK's dense LU (numpy.linalg.solve) instead
+#: lower bandwidths above max(16, n/16) use a sparse LU (scipy.sparse.linalg.spsolve) instead
 #: of the banded elimination: measured on this 2-core machine, the banded elimination
 #: (~p n^2/2 operations) took 0.4, 0.9, 1.6, 2.8 ms for p = 2, 8, 16, 32 at n = 500 against
-#: ~3 ms for numpy.linalg.solve, and 1.7, 3.6, 6.6 ms for p = 2, 8, 16 at n = 1000 against
-#: ~40 ms; the crossover scales as n
+#: ~3 ms for a dense numpy.linalg.solve on an idle machine (150 ms under load, where the
+#: sparse LU of the same matrix stayed near 5 ms: a CO2/H2 table of 22 fields went from
+#: about 4 s to 0.75 s); the crossover scales as n
 DENSE_LAPACK_BANDWIDTH_FRACTION = 1.0 / 16.0
 #: smallest momentum-transfer cross section used in u/sigma (m2): guards empty tables
 SIGMA_FLOOR_M2 = 1e-35
@@ -493,13 +494,34 @@ def solve_lower_banded(A, rhs, p):
     return x
 
 
+def _sparse_solve(A, rhs):
+    """Solve A x = rhs by sparse LU (SuperLU via scipy.sparse.linalg.spsolve).
+
+    The discrete operator couples each cell to a few neighbours and, per inelastic process,
+    to the cells one threshold away (and the secondaries of ionization to the low cells): a
+    few per cent of the entries of the dense matrix are non-zero, so a sparse LU beats the
+    dense one by an order of magnitude at 500 cells. Returns None when A is singular.
+    """
+    from scipy.sparse import csc_matrix
+    from scipy.sparse.linalg import MatrixRankWarning, spsolve
+    import warnings
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", MatrixRankWarning)
+        try:
+            x = spsolve(csc_matrix(A), rhs)
+        except (MatrixRankWarning, RuntimeError):
+            return None
+    return x if np.all(np.isfinite(x)) else None
+
+
 def linear_solve(u_f, sigma_m_f, sigma_eps_f, h, en, kT, nu, alpha, W_ee, D_ee, loss, m,
                  t_lo, t_glo, t_ghi, lower_bandwidth, marchable, work, out):
     """One linear solve of the discrete equations for fixed nonlinear parameters.
 
     ``nu`` (temporal growth, m3/s) and ``alpha`` (spatial growth, m2) as in
     :func:`face_terms`, which fills ``out``. Marching when ``marchable`` (checked: finite,
-    non-negative), else banded elimination in ``work`` (n x n), else LAPACK for wide bands.
+    non-negative), else banded elimination in ``work`` (n x n), else a sparse LU for wide bands.
     Returns the EEDF normalised to sum(m F) = 1, or None when the system could not be solved.
     """
     n = m.size
@@ -523,9 +545,8 @@ def linear_solve(u_f, sigma_m_f, sigma_eps_f, h, en, kT, nu, alpha, W_ee, D_ee, 
         scale = float(np.max(a[:n] + b[:n] + diag))
         rhs = assemble(work, a, b, cl, cr, diag, t_lo, t_glo, t_ghi, m * (scale / m.max()))
         if lower_bandwidth > max(16.0, DENSE_LAPACK_BANDWIDTH_FRACTION * n):
-            try:
-                F = np.linalg.solve(work, rhs)
-            except np.linalg.LinAlgError:
+            F = _sparse_solve(work, rhs)
+            if F is None:
                 return None
         else:
             F = solve_lower_banded(work, rhs, lower_bandwidth)
