@@ -172,6 +172,25 @@ def _conditions(t, table, cond, k_el, out):
 
 
 @njit(cache=True)
+def _store(k, t_out, yv, outs, sums, table, cond, k_el):
+    """Write output row ``k``: time, densities ``yv`` (clipped at 0), the cumulative sums
+    and the conditions at ``t_out``. ``outs`` = (out_t, out_y, out_R, out_L, out_cond,
+    out_ext, out_Rp), ``sums`` = (R_cum, L_cum, cum, Rp_cum)."""
+    out_t, out_y, out_R, out_L, out_cond, out_ext, out_Rp = outs
+    R_cum, L_cum, cum, Rp_cum = sums
+    out_t[k] = t_out
+    for i in range(yv.shape[0]):
+        out_y[k, i] = yv[i] if yv[i] > 0.0 else 0.0
+        out_L[k, i] = L_cum[i]
+    for j in range(R_cum.shape[0]):
+        out_R[k, j] = R_cum[j]
+        out_Rp[k, j] = Rp_cum[j]
+    out_ext[k, 0] = math.exp(cum[0])
+    out_ext[k, 1] = cum[1]
+    _conditions(t_out, table, cond, k_el, out_cond[k])
+
+
+@njit(cache=True)
 def _all_finite(v):
     for x in v.flat:
         if not (abs(x) < math.inf):
@@ -217,6 +236,8 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_
     yd = np.empty(n)
     lq = np.empty(n)
     k_el = np.empty(table[2].shape[1])
+    outs = (out_t, out_y, out_R, out_L, out_cond, out_ext, out_Rp)
+    sums = (R_cum, L_cum, cum, Rp_cum)
     rq = np.empty(n_r)
     gq = np.empty(2)
     scal = work[6]
@@ -259,16 +280,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_
             if not step_mode:
                 k = ist[_I_OUT]
                 while k < n_eval and t_eval[k] <= t_stop:
-                    out_t[k] = t_eval[k]
-                    for i in range(n):
-                        out_y[k, i] = y[i]
-                        out_L[k, i] = L_cum[i]
-                    for j in range(n_r):
-                        out_R[k, j] = R_cum[j]
-                        out_Rp[k, j] = Rp_cum[j]
-                    out_ext[k, 0] = math.exp(cum[0])
-                    out_ext[k, 1] = cum[1]
-                    _conditions(t_eval[k], table, cond, k_el, out_cond[k])
+                    _store(k, t_eval[k], y, outs, sums, table, cond, k_el)
                     k += 1
                 ist[_I_OUT] = k
             t = max(t, t_stop)
@@ -469,16 +481,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_
             if not is_out:
                 break
             dense_eval(th, y, ynew, h1, h2, yd)
-            out_t[k] = t_eval[k]
-            for i in range(n):
-                out_y[k, i] = yd[i] if yd[i] > 0.0 else 0.0
-                out_L[k, i] = L_cum[i]
-            for j in range(n_r):
-                out_R[k, j] = R_cum[j]
-                out_Rp[k, j] = Rp_cum[j]
-            out_ext[k, 0] = math.exp(cum[0])
-            out_ext[k, 1] = cum[1]
-            _conditions(t_eval[k], table, cond, k_el, out_cond[k])
+            _store(k, t_eval[k], yd, outs, sums, table, cond, k_el)
             k += 1
         ist[_I_OUT] = k
         for i in range(n):
@@ -499,16 +502,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_
             ist[_I_AFTER_REJ] = 0
         if step_mode:
             k = ist[_I_OUT]
-            out_t[k] = t
-            for i in range(n):
-                out_y[k, i] = y[i]
-                out_L[k, i] = L_cum[i]
-            for j in range(n_r):
-                out_R[k, j] = R_cum[j]
-                out_Rp[k, j] = Rp_cum[j]
-            out_ext[k, 0] = math.exp(cum[0])
-            out_ext[k, 1] = cum[1]
-            _conditions(t, table, cond, k_el, out_cond[k])
+            _store(k, t, y, outs, sums, table, cond, k_el)
             k += 1
             ist[_I_OUT] = k
             if k >= out_t.shape[0]:

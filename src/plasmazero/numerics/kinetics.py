@@ -398,26 +398,39 @@ def clear_rate_cache(work):
     work[10][2] = 0.0
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def _cached_rate_coefficients(kernel_args, work, Tg, E_N_Td, mean_eV, k_el, nM, k, dk):
     """Every rate coefficient and dk/dn_M through the cache of the module docstring."""
     cf = work[10]
     electron, falloff, reverse, forward = work[11]
     k_const, kE, dkE, nME, kF, dkF, nMF, inv_Kc = work[15]
-    if cf[2] == 0.0 or cf[0] != Tg:
-        rate_coefficients(kernel_args, Tg, Tg, E_N_Td, mean_eV, k_el, nM, k_const, dk)
-        rate_coefficients(work[14], Tg, Tg, E_N_Td, mean_eV, k_el, nM, k, dk)
-        for q in range(reverse.shape[0]):
-            inv_Kc[q] = k[reverse[q]]
-        cf[0] = Tg
-        cf[1] = math.nan
-        cf[2] = 1.0
-    if not (cf[1] == E_N_Td):
-        rate_coefficients(work[12], Tg, Tg, E_N_Td, mean_eV, k_el, nME, kE, dkE)
-        cf[1] = E_N_Td
+    full = cf[2] == 0.0 or cf[0] != Tg
+    new_field = full or not (cf[1] == E_N_Td)
     for q in range(falloff.shape[0]):
         nMF[q] = nM[falloff[q]]
-    rate_coefficients(work[13], Tg, Tg, E_N_Td, mean_eV, k_el, nMF, kF, dkF)
+    # one call site of the rate-law kernel (each call site is compiled separately)
+    for part in range(4):
+        if part == 0:
+            if not full:
+                continue
+            args, n_M, k_part, dk_part = kernel_args, nM, k_const, dk     # all rows
+        elif part == 1:
+            if not full:
+                continue
+            args, n_M, k_part, dk_part = work[14], nM, k, dk              # 1/Kc
+        elif part == 2:
+            if not new_field:
+                continue
+            args, n_M, k_part, dk_part = work[12], nME, kE, dkE           # electron rows
+        else:
+            args, n_M, k_part, dk_part = work[13], nMF, kF, dkF           # falloff rows
+        rate_coefficients(args, Tg, Tg, E_N_Td, mean_eV, k_el, n_M, k_part, dk_part)
+        if part == 1:
+            for q in range(reverse.shape[0]):
+                inv_Kc[q] = k[reverse[q]]
+    cf[0] = Tg
+    cf[1] = E_N_Td
+    cf[2] = 1.0
     for j in range(k.shape[0]):
         k[j] = k_const[j]
         dk[j] = 0.0
