@@ -21,10 +21,11 @@ DEFAULT_SECONDARY_EMISSION = 0.01
 #: Lennard-Jones collision diameters, m, used as hard-sphere diameters for the diffusion of
 #: radicals to pellet surfaces. Values from memory of the tables of Hirschfelder, Curtiss &
 #: Bird (1954) and Poling, Prausnitz & O'Connell (2001), Appendix B; atoms and radicals
-#: without a tabulated value take DEFAULT_DIAMETER_M.
+#: without a tabulated value (O3, atoms, radicals) take DEFAULT_DIAMETER_M (an order-of-magnitude
+#: choice of this code, no source).
 COLLISION_DIAMETER_M = {
     "H2": 2.827e-10, "O2": 3.467e-10, "N2": 3.798e-10, "CO": 3.690e-10, "CO2": 3.941e-10,
-    "H2O": 2.641e-10, "Ar": 3.542e-10, "He": 2.551e-10, "CH4": 3.758e-10, "O3": 3.6e-10,
+    "H2O": 2.641e-10, "Ar": 3.542e-10, "He": 2.551e-10, "CH4": 3.758e-10,
     "CH3OH": 3.626e-10,
 }
 DEFAULT_DIAMETER_M = 3.0e-10
