@@ -398,7 +398,7 @@ def clear_rate_cache(work):
     work[10][2] = 0.0
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True)
 def _cached_rate_coefficients(kernel_args, work, Tg, E_N_Td, mean_eV, k_el, nM, k, dk):
     """Every rate coefficient and dk/dn_M through the cache of the module docstring."""
     cf = work[10]
