@@ -11,7 +11,7 @@ import pytest
 from scipy.special import gamma as gamma_function
 
 from plasmazero.boltzmann import build_mixture, rate_coefficient, solve_swarm
-from plasmazero.data.cross_sections import CrossSectionSet, Process
+from plasmazero.data.cross_sections import Process, make_cross_section_set
 from plasmazero.physics.boltzmann.constants import (
     AMU_KG,
     BOLTZMANN_EV_K,
@@ -21,13 +21,7 @@ from plasmazero.physics.boltzmann.constants import (
 )
 
 
-def _gas(name, mass_amu, processes):
-    """A CrossSectionSet built in memory from (id, kind, energies, sigmas, threshold, weight_ratio)."""
-    procs = tuple(
-        Process(id=i, kind=k, gas=name, energy_eV=np.asarray(e, float),
-                cross_section_m2=np.asarray(s, float), threshold_eV=t, weight_ratio=w)
-        for i, k, e, s, t, w in processes)
-    return CrossSectionSet(gas=name, mass_amu=mass_amu, processes=procs, by_id={p.id: p for p in procs})
+_gas = make_cross_section_set
 
 
 def _maxwell_gas(k_m_m3_s, mass_amu):

@@ -16,17 +16,12 @@ from plasmazero.boltzmann import (
     solve_swarm,
     uniform_grid,
 )
-from plasmazero.data.cross_sections import CrossSectionSet, Process
+from plasmazero.data.cross_sections import make_cross_section_set
 from plasmazero.data.errors import InputError
 from plasmazero.physics.boltzmann import operator as op_module
 
 
-def _gas(name, mass_amu, processes):
-    procs = tuple(
-        Process(id=i, kind=k, gas=name, energy_eV=np.asarray(e, float),
-                cross_section_m2=np.asarray(s, float), threshold_eV=t, weight_ratio=w)
-        for i, k, e, s, t, w in processes)
-    return CrossSectionSet(gas=name, mass_amu=mass_amu, processes=procs, by_id={p.id: p for p in procs})
+_gas = make_cross_section_set
 
 
 def _model_parts():

@@ -251,3 +251,22 @@ def load_cross_sections(path):
     procs = tuple(processes)
     return CrossSectionSet(gas=gas, mass_amu=float(mass), processes=procs, source=str(file_source),
                            path=path, by_id={p.id: p for p in procs})
+
+
+def make_cross_section_set(gas, mass_amu, processes, source=""):
+    """Build a :class:`CrossSectionSet` in memory (model gases, tests, synthetic benchmarks).
+
+    Parameters
+    ----------
+    gas : str
+    mass_amu : float
+    processes : iterable of (id, kind, energy_eV, cross_section_m2, threshold_eV, weight_ratio)
+        ``weight_ratio`` None for no superelastic reverse. Tables are not validated here:
+        write a file and use :func:`load_cross_sections` for user data.
+    """
+    procs = tuple(
+        Process(id=i, kind=k, gas=gas, energy_eV=np.asarray(e, float),
+                cross_section_m2=np.asarray(s, float), threshold_eV=float(t), weight_ratio=w, source=source)
+        for i, k, e, s, t, w in processes)
+    return CrossSectionSet(gas=gas, mass_amu=float(mass_amu), processes=procs, source=source,
+                           by_id={p.id: p for p in procs})

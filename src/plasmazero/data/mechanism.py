@@ -157,7 +157,7 @@ from pathlib import Path
 
 from .cross_sections import PROVENANCE, load_cross_sections
 from .errors import InputError, format_problem
-from .yamlio import line_of, read_yaml
+from .yamlio import is_finite_number, line_of, read_yaml
 
 TOP_KEYS = {"name", "description", "source", "provenance", "note", "units", "elements",
             "cross_sections", "thermo_library", "species", "reactions"}
@@ -282,12 +282,7 @@ class Mechanism:
 
 def _number(x):
     """True for a finite int or float that is not a bool (huge integers are not finite)."""
-    if isinstance(x, bool) or not isinstance(x, (int, float)):
-        return False
-    try:
-        return math.isfinite(float(x))
-    except OverflowError:
-        return False
+    return is_finite_number(x)
 
 
 def _integer(x):
