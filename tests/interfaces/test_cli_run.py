@@ -113,3 +113,18 @@ def test_bad_scenario_leaves_no_result_file(tmp_path):
     assert proc.returncode == 2
     assert "feed.flow_sccm: must be positive" in proc.stderr and "Traceback" not in proc.stderr
     assert not out.exists() and not list(tmp_path.glob(".r.h5*"))
+
+
+def test_sensitivity_and_uncertainty_commands(tmp_path, capsys):
+    # wiring of the commands on a tiny case (the methods are tested against closed forms in
+    # tests/workflows/test_sensitivity_uncertainty.py)
+    scen = _small(tmp_path, pulses=2)
+    assert main(["sensitivity", str(scen), "--target", "conversion_CO2", "--rows", "0,2",
+                 "-o", str(tmp_path / "s.h5"), "--workers", "0", "--no-progress"]) == 0
+    out = capsys.readouterr().out
+    assert "sensitivity of conversion_CO2" in out and "[co2_v010]" in out
+    assert main(["uncertainty", str(scen), "--target", "conversion_CO2", "--samples", "3",
+                 "-o", str(tmp_path / "u.h5"), "--workers", "0", "--no-progress"]) == 0
+    assert "5 %:" in capsys.readouterr().out
+    assert main(["sensitivity", str(scen), "--target", "conversion_CO2", "--rows", "99999",
+                 "-o", str(tmp_path / "x.h5"), "--workers", "0"]) == 2

@@ -31,6 +31,8 @@ COMMANDS = {
     "export": "export the bed feed of a result (CSV, YAML, JSON)",
     "plot": "plot a result file into PNG figures",
     "scan": "scan a scenario over parameters (grid or Latin hypercube; local or Dask)",
+    "sensitivity": "sensitivities of a scenario's figures to every rate coefficient",
+    "uncertainty": "Monte Carlo propagation of rate-coefficient uncertainty",
 }
 
 
