@@ -70,6 +70,9 @@ def main(argv=None):
         for problem in exc.problems:
             print(f"plasmazero: error: {problem}", file=sys.stderr)
         return 2
+    except BrokenPipeError:   # output piped into head and the like: stop quietly
+        sys.stderr.close()
+        return 0
     except KeyboardInterrupt:
         print("plasmazero: interrupted", file=sys.stderr)
         return 130

@@ -13,7 +13,7 @@ their error and the scan goes on.
 
 from pathlib import Path
 
-from plasmazero.data.scenario import load_scenario  # noqa: F401 - validates the base early
+from plasmazero.data.scenario import load_scenario
 from plasmazero.data.yamlio import read_yaml
 from plasmazero.workflows.scan import run_scan, write_summary_csv
 
@@ -33,7 +33,7 @@ def add_arguments(parser):
 
 
 def run(args):
-    load_scenario(args.scenario)
+    load_scenario(args.scenario)   # one-line errors for a bad base before any worker starts
     path = Path(args.scenario)
     base = read_yaml(path)
     result = run_scan("plasmazero.workflows.dbd_point:evaluate", base, args.vary, design=args.sample,

@@ -35,9 +35,17 @@ def add_arguments(parser):
 
 
 def mechanism_rows(path, scenario):
-    """(row labels, reverse_of) of the scenario's compiled mechanism."""
+    """(row labels, compiled mechanism) of the scenario's mechanism."""
     loaded, mech = dbd.load_mechanism_pair(dbd.resolve_mechanism(scenario["mechanism"], path))
-    return dbd.reaction_labels(loaded, mech), mech.reverse_of
+    return dbd.reaction_labels(loaded, mech), mech
+
+
+def save_per_target(plot, result, targets, folder, prefix):
+    """Write ``plot(result, target)`` as ``<folder>/<prefix>_<target>.png`` for every target."""
+    out = Path(folder)
+    out.mkdir(parents=True, exist_ok=True)
+    for target in targets:
+        plot(result, target).savefig(out / f"{prefix}_{target}.png", dpi=110)
 
 
 def parse_rows(text, n_rows, path):
@@ -56,10 +64,10 @@ def parse_rows(text, n_rows, path):
 def run(args):
     path = Path(args.scenario)
     scenario = load_scenario(path)
-    labels, reverse_of = mechanism_rows(path, scenario)
+    labels, mech = mechanism_rows(path, scenario)
     rows = parse_rows(args.rows, len(labels), path)
     result = run_sensitivity(POINT, read_yaml(path), args.target, labels, factor=args.factor, rows=rows,
-                             tie_to=reverse_of, context={"scenario_file": str(path.resolve())},
+                             tie_to=mech.reverse_of, context={"scenario_file": str(path.resolve())},
                              scan_file=args.out, workers=args.workers, dask_address=args.dask,
                              progress=not args.no_progress)
     for target in args.target:
@@ -69,8 +77,6 @@ def run(args):
             print(f"  {s:+9.4f}  [{row}] {label}")
     if args.plot:
         from .scan_plots import plot_tornado
-        out = Path(args.plot)
-        out.mkdir(parents=True, exist_ok=True)
-        for target in args.target:
-            plot_tornado(result, target, top=args.top).savefig(out / f"sensitivity_{target}.png", dpi=110)
+        save_per_target(lambda r, t: plot_tornado(r, t, top=args.top), result, args.target, args.plot,
+                        "sensitivity")
     return 0

@@ -14,10 +14,9 @@ from pathlib import Path
 
 from plasmazero.data.scenario import load_scenario
 from plasmazero.data.yamlio import read_yaml
-from plasmazero.workflows import dbd
 from plasmazero.workflows.uncertainty import rank_drivers, run_uncertainty
 
-from .cmd_sensitivity import POINT
+from .cmd_sensitivity import POINT, mechanism_rows, save_per_target
 
 
 def add_arguments(parser):
@@ -38,8 +37,7 @@ def add_arguments(parser):
 def run(args):
     path = Path(args.scenario)
     scenario = load_scenario(path)
-    loaded, mech = dbd.load_mechanism_pair(dbd.resolve_mechanism(scenario["mechanism"], path))
-    labels = dbd.reaction_labels(loaded, mech)
+    labels, mech = mechanism_rows(path, scenario)
     result = run_uncertainty(POINT, read_yaml(path), args.target, mech.uncertainty_factor, labels,
                              n_samples=args.samples, seed=args.seed, default_factor=args.default_factor,
                              tie_to=mech.reverse_of, context={"scenario_file": str(path.resolve())},
@@ -53,8 +51,5 @@ def run(args):
             print(f"  r = {r:+.3f}  [{row}] {label}")
     if args.plot:
         from .scan_plots import plot_uncertainty
-        out = Path(args.plot)
-        out.mkdir(parents=True, exist_ok=True)
-        for target in args.target:
-            plot_uncertainty(result, target).savefig(out / f"uncertainty_{target}.png", dpi=110)
+        save_per_target(plot_uncertainty, result, args.target, args.plot, "uncertainty")
     return 0
