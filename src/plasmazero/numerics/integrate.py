@@ -3,7 +3,9 @@
 What it solves
 --------------
 The species balances of :mod:`plasmazero.numerics.kinetics` (mass action plus the
-caller's linear loss/source terms) at a fixed gas temperature, with the electrons as one
+caller's linear loss/source terms) at a fixed gas temperature or with the gas energy
+equation (``energy_equation``, isobaric or isochoric: the temperature is one more entry
+of the state, see the kinetics module docstring), with the electrons as one
 of the species and their rate coefficients taken from an E/N table (local field
 approximation, :mod:`plasmazero.numerics.electrons`) along a field profile E/N(t) that is
 piecewise linear in time.
@@ -121,8 +123,9 @@ from ..physics import ratelaws
 from .controller import error_norm, next_step_accepted, next_step_rejected
 from .electrons import ElectronTable, interpolate_table, table_arrays
 from .field import as_density_profile, as_field, density_segments, segments
-from .kinetics import (COND_ELECTRON, COND_ELECTRON_SLOPE, COND_EXPANSION, COND_PRESCRIBED,
-                       COND_SIZE, JACOBIAN, JACOBIAN_SPLIT, RATES, RHS, charge_imbalance,
+from .kinetics import (COND_ELECTRON, COND_ELECTRON_SLOPE, COND_ENERGY, COND_EXPANSION,
+                       COND_HEAT_LOSS, COND_PRESCRIBED, COND_SIZE, COND_T_WALL,
+                       ENERGY_ISOBARIC, ENERGY_ISOCHORIC, JACOBIAN, JACOBIAN_SPLIT, RATES, RHS, charge_imbalance,
                        clear_rate_cache, evaluate, field_at, jacobian_pattern, linear_terms,
                        net_stoichiometry, rate_cache)
 from .linalg import sparse_symbolic
@@ -136,6 +139,9 @@ from .rosenbrock import ORDER, dense_coefficients, dense_eval, rodas4_step
 FIELD_DERIVATIVE_STEP = 1e-5
 ATOL_FLOOR_M3 = 1e6
 ATOL_FRACTION = 1e-20
+#: absolute tolerance of the gas temperature with an energy equation, K (far below any
+#: temperature change that matters; the relative tolerance governs; a choice of this code)
+ATOL_TEMPERATURE_K = 1e-6
 DEFAULT_MAX_STEPS = 200_000
 STEP_BUFFER = 1024
 
@@ -187,6 +193,8 @@ def _store(k, t_out, yv, outs, sums, table, cond, k_el):
         out_Rp[k, j] = Rp_cum[j]
     out_ext[k, 0] = math.exp(cum[0])
     out_ext[k, 1] = cum[1]
+    out_ext[k, 2] = cum[2]
+    out_ext[k, 3] = cum[3]
     _conditions(t_out, table, cond, k_el, out_cond[k])
 
 
@@ -206,8 +214,9 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_
 
     ``seg_ne`` (n_seg, 3): per segment [prescribed (1/0), n_e at its start, slope] of the
     electron density; ``cum`` = [integral of S/N_D dt (ln of the expansion factor),
-    integral of n_e dt]; ``Rp_cum`` the parcel integrals of the rates; ``out_ext`` (cap, 2)
-    and ``out_Rp`` (cap, n_r) their outputs (expansion factor, integral of n_e).
+    integral of n_e dt, integral of P_e phi dt, integral of the heat loss phi dt]; ``Rp_cum``
+    the parcel integrals of the rates; ``out_ext`` (cap, 4) and ``out_Rp`` (cap, n_r) their
+    outputs (expansion factor, integral of n_e, the two energy integrals).
 
     The loop runs until the end time, a failure, a stale electron table (``TABLE_STALE``)
     or a full output buffer (``BUFFER_FULL``); the driver may call it again to continue.
@@ -244,6 +253,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_
     inv_sqrt3 = 1.0 / math.sqrt(3.0)
     e_idx = int(cond[COND_ELECTRON])
     expand = cond[COND_EXPANSION] != 0.0
+    energy = cond[COND_ENERGY] != 0.0
 
     t = fst[_F_T]
     h = fst[_F_H]
@@ -254,9 +264,11 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_
     max_steps = opts_i[_O_MAX_STEPS]
     step_mode = opts_i[_O_MODE] == 1
     do_rates = opts_i[_O_RATES] == 1
-    do_quad = do_rates or expand
+    do_quad = do_rates or expand or energy
     jac_mode = JACOBIAN_SPLIT if sp[0][0] == 1 else JACOBIAN
-    quad_mode = RHS if expand else RATES
+    quad_mode = RHS if (expand or energy) else RATES
+    pq = np.zeros(2)
+    hq = np.zeros(2)
     monitor = opts_i[_O_MONITOR] == 1
     h_max = opts_f[_O_HMAX]
     h_fixed = opts_f[_O_HFIX]
@@ -462,21 +474,28 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_
                                 for j in range(n_r):
                                     rq[j] = r[j]
                         gq[node_sign] = scal[0]
+                        pq[node_sign] = scal[3]
+                        hq[node_sign] = scal[4]
                     ist[_I_QUAD] += 2
+                    p1 = 1.0
+                    p2 = 1.0
                     if expand:
+                        # ln(phi) at the two nodes: integral from theta_a of the
+                        # straight line through the two node values of S/N_D
+                        d1 = mid - half * inv_sqrt3 - theta_a
+                        ds = 2.0 * half * inv_sqrt3
+                        sg = (gq[1] - gq[0]) / ds
+                        p1 = math.exp(cum[0] + h * (d1 * gq[0] - 0.5 * sg * d1 * d1))
+                        p2 = math.exp(cum[0] + h * ((d1 + ds) * gq[0]
+                                                    + 0.5 * sg * (ds * ds - d1 * d1)))
                         if do_rates:
-                            # ln(phi) at the two nodes: integral from theta_a of the
-                            # straight line through the two node values of S/N_D
-                            d1 = mid - half * inv_sqrt3 - theta_a
-                            ds = 2.0 * half * inv_sqrt3
-                            sg = (gq[1] - gq[0]) / ds
-                            p1 = math.exp(cum[0] + h * (d1 * gq[0] - 0.5 * sg * d1 * d1))
-                            p2 = math.exp(cum[0] + h * ((d1 + ds) * gq[0]
-                                                        + 0.5 * sg * (ds * ds - d1 * d1)))
                             r = work[3]
                             for j in range(n_r):
                                 Rp_cum[j] += w * (rq[j] * p1 + r[j] * p2)
                         cum[0] += w * (gq[0] + gq[1])
+                    if energy:
+                        cum[2] += w * (pq[0] * p1 + pq[1] * p2)
+                        cum[3] += w * (hq[0] * p1 + hq[1] * p2)
             theta_a = th
             if not is_out:
                 break
@@ -607,17 +626,45 @@ def rate_multiplier_array(mech, rate_multipliers):
     return mult
 
 
+#: ``energy_equation`` names and their ``cond`` codes
+ENERGY_EQUATIONS = {None: 0, "isobaric": ENERGY_ISOBARIC, "isochoric": ENERGY_ISOCHORIC}
+
+
 def build_model(mech, T_gas_K, *, electron_table=None, loss_frequency_s=None,
                 loss_products=None, source_m3_s=None, E_N_Td=0.0, rate_multipliers=None,
-                constant_total_density=False, electron_species=None):
+                constant_total_density=False, electron_species=None, energy_equation=None,
+                heat_loss_W_m3_K=0.0, wall_temperature_K=None):
     """The ``model`` tuple of :mod:`plasmazero.numerics.kinetics` for a mechanism.
 
     Used by :func:`integrate`; also lets callers evaluate the right-hand side and the
     Jacobian at a state (``kinetics.evaluate``), e.g. for tests and diagnostics. The field
     is the constant ``E_N_Td`` (Td) until :func:`integrate` sets its segments; the
     electron density is free (``cond[6] = 0``) until a prescribed segment sets it.
-    ``rate_multipliers`` and ``constant_total_density`` as for :func:`integrate`.
+    ``rate_multipliers``, ``constant_total_density``, ``energy_equation``,
+    ``heat_loss_W_m3_K`` and ``wall_temperature_K`` as for :func:`integrate` (with an
+    energy equation the state passed to ``kinetics.evaluate`` ends with the temperature,
+    and isobaric implies ``constant_total_density``).
     """
+    if energy_equation not in ENERGY_EQUATIONS:
+        raise ValueError("energy_equation must be None, 'isobaric' or 'isochoric'")
+    heat_loss_W_m3_K = float(heat_loss_W_m3_K)
+    if not (heat_loss_W_m3_K >= 0.0 and math.isfinite(heat_loss_W_m3_K)):
+        raise ValueError("heat_loss_W_m3_K must be a finite number >= 0")
+    species = tuple(mech.species)
+    n = len(species)
+    if energy_equation is not None:
+        coeffs = np.asarray(mech.kernel_args[6]).reshape(n, -1)
+        ranges = np.asarray(mech.kernel_args[7]).reshape(n, -1)
+        ok = np.all(np.isfinite(coeffs), axis=1) & np.all(np.isfinite(ranges), axis=1)
+        missing = [s for s, good in zip(species, ok) if not good]
+        if missing:
+            raise ValueError(f"the energy equation needs NASA-7 thermo for every species; "
+                             f"missing: {', '.join(missing)}")
+        if energy_equation == "isochoric" and constant_total_density:
+            raise ValueError("an isochoric energy equation keeps the volume: "
+                             "constant_total_density must be off")
+        if energy_equation == "isobaric":
+            constant_total_density = True
     species = tuple(mech.species)
     n = len(species)
     n_r = len(tuple(mech.reactions))
@@ -638,10 +685,17 @@ def build_model(mech, T_gas_K, *, electron_table=None, loss_frequency_s=None,
     cond[0:4] = (float(T_gas_K), 0.0, float(E_N_Td), 0.0)
     cond[COND_EXPANSION] = 1.0 if constant_total_density else 0.0
     cond[COND_ELECTRON] = float(_electron_index(mech, electron_species))
+    cond[COND_ENERGY] = float(ENERGY_EQUATIONS[energy_equation])
+    cond[COND_HEAT_LOSS] = heat_loss_W_m3_K
+    T_wall = float(T_gas_K if wall_temperature_K is None else wall_temperature_K)
+    if not (T_wall > 0.0 and math.isfinite(T_wall)):
+        raise ValueError("wall_temperature_K must be a positive temperature")
+    cond[COND_T_WALL] = T_wall
     kernel_args = tuple(mech.kernel_args)
     work = (np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_p),
-            np.zeros(n_tb), np.zeros(4), np.zeros(n), np.zeros(n), np.zeros(n)) + \
-        rate_cache(kernel_args, ratelaws)
+            np.zeros(n_tb), np.zeros(6), np.zeros(n), np.zeros(n), np.zeros(n)) + \
+        rate_cache(kernel_args, ratelaws) + \
+        (np.zeros(n), np.zeros(n), np.zeros(n + 1), np.zeros(n + 1))
     return (mech_arrays, kernel_args, linear, table_arrays(table, n_p), cond, work)
 
 
@@ -676,11 +730,15 @@ def linear_solver_arrays(model, linear_solver="auto"):
     if linear_solver not in ("auto", "dense", "sparse"):
         raise ValueError("linear_solver must be 'auto', 'dense' or 'sparse'")
     n = model[2][0].shape[0]
+    energy = model[4][COND_ENERGY] != 0.0
+    if energy and linear_solver == "sparse":
+        raise ValueError("the energy equation uses the dense linear solver (its row and "
+                         "column are dense): give linear_solver='dense' or 'auto'")
     ei = np.zeros(0, dtype=np.int64)
     ef = np.zeros(0)
     dense = (np.zeros(3, dtype=np.int64), ei, ei, ei, ei, ei, ei, ef, ef, np.zeros((2, 0)),
              np.zeros(2, dtype=np.int64))
-    if linear_solver == "dense" or (linear_solver == "auto" and n < SPARSE_MIN_SPECIES):
+    if linear_solver == "dense" or (linear_solver == "auto" and (n < SPARSE_MIN_SPECIES or energy)):
         return dense, "dense"
     order, indptr, indices, diag, flops = sparse_symbolic(jacobian_pattern(model, split=True))
     if linear_solver == "auto" and flops > SPARSE_FLOP_FRACTION * n ** 3 / 3.0:
@@ -700,7 +758,8 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
               rebuild_table=None, partner_tolerance=0.02, integrate_rates=True,
               electron_species=None, raise_on_failure=True, rate_multipliers=None,
               constant_total_density=False, electron_density_profile=None,
-              linear_solver="auto"):
+              linear_solver="auto", energy_equation=None, heat_loss_W_m3_K=0.0,
+              wall_temperature_K=None):
     """Integrate the species balances of a compiled mechanism over ``t_span_s``.
 
     Parameters
@@ -715,7 +774,7 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
     t_span_s : (float, float)
         Start and end time, s (end > start).
     T_gas_K : float
-        Gas temperature, K (fixed).
+        Gas temperature, K: fixed, or the initial one with ``energy_equation``.
     field : plasmazero.numerics.FieldProfile, (times_s, E_N_Td), float or None
         Reduced field E/N(t), Td, piecewise linear; None means E/N = 0.
     electron_table : ElectronTable or None
@@ -768,7 +827,19 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
         times (module docstring).
     linear_solver : {"auto", "dense", "sparse"}
         Linear algebra of the stepper (:func:`linear_solver_arrays`); the result's
-        ``linear_solver`` says which was used.
+        ``linear_solver`` says which was used ("auto" is dense with an energy equation).
+    energy_equation : {None, "isobaric", "isochoric"}
+        None: fixed gas temperature. Otherwise the gas temperature is integrated with the
+        species from the enthalpy balance of :mod:`plasmazero.numerics.kinetics` (electron
+        power e n_e w E in, reaction enthalpies, a wall heat loss out); every species needs
+        thermo. "isobaric" follows a parcel at constant pressure (implies
+        ``constant_total_density``: the total density then follows N = p / (k T));
+        "isochoric" a closed volume (``constant_total_density`` must be off).
+    heat_loss_W_m3_K : float
+        Heat-transfer coefficient G of the loss G (T - T_wall), W m^-3 K^-1 (default 0:
+        adiabatic).
+    wall_temperature_K : float or None
+        T_wall, K (default: the initial ``T_gas_K``).
 
     Returns
     -------
@@ -797,6 +868,9 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
     T_gas_K = float(T_gas_K)
     if not (T_gas_K > 0.0 and math.isfinite(T_gas_K)):
         raise ValueError("T_gas_K must be a positive temperature")
+    energy = energy_equation is not None
+    if energy_equation == "isobaric":
+        constant_total_density = True
     prof = as_field(field)
     ne_prof = as_density_profile(electron_density_profile)
     bps = list(np.atleast_1d(np.asarray(breakpoints_s, dtype=float)))
@@ -855,7 +929,16 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
                         loss_products=loss_products, source_m3_s=source_m3_s,
                         rate_multipliers=rate_multipliers,
                         constant_total_density=constant_total_density,
-                        electron_species=electron_species)
+                        electron_species=electron_species, energy_equation=energy_equation,
+                        heat_loss_W_m3_K=heat_loss_W_m3_K, wall_temperature_K=wall_temperature_K)
+    n_y = n + 1 if energy else n
+    if energy:
+        # the state ends with the gas temperature: tolerances, flags and clipping cover it
+        y = np.r_[y, T_gas_K]
+        rtol_v = np.r_[rtol_v, rtol_v.min()]
+        atol_v = np.r_[atol_v, ATOL_TEMPERATURE_K]
+        heavy = np.r_[heavy, False]
+        charge = np.r_[charge, 0.0]
     cond = model[4]
     cond[1:4] = (stops[0], seg_E0[0], seg_slope[0])
     cond[COND_ELECTRON] = float(e_idx)
@@ -875,17 +958,17 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
             raise ValueError("t_eval_s must lie within t_span_s")
         cap = t_eval.size
     out_t = np.zeros(cap)
-    out_y = np.zeros((cap, n))
+    out_y = np.zeros((cap, n_y))
     out_R = np.zeros((cap, n_r))
-    out_L = np.zeros((cap, n))
+    out_L = np.zeros((cap, n_y))
     out_cond = np.zeros((cap, 3))
-    out_ext = np.zeros((cap, 2))
+    out_ext = np.zeros((cap, 4))
     out_Rp = np.zeros((cap, n_r))
     R_cum = np.zeros(n_r)
-    L_cum = np.zeros(n)
-    cum = np.zeros(2)
+    L_cum = np.zeros(n_y)
+    cum = np.zeros(4)
     Rp_cum = np.zeros(n_r)
-    clipped = np.zeros(n)
+    clipped = np.zeros(n_y)
 
     fst = np.zeros(_N_F)
     ist = np.zeros(_N_I, dtype=np.int64)
@@ -921,11 +1004,11 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
         if status == BUFFER_FULL:
             grow = out_t.size
             out_t = np.concatenate([out_t, np.zeros(grow)])
-            out_y = np.concatenate([out_y, np.zeros((grow, n))])
+            out_y = np.concatenate([out_y, np.zeros((grow, n_y))])
             out_R = np.concatenate([out_R, np.zeros((grow, n_r))])
-            out_L = np.concatenate([out_L, np.zeros((grow, n))])
+            out_L = np.concatenate([out_L, np.zeros((grow, n_y))])
             out_cond = np.concatenate([out_cond, np.zeros((grow, 3))])
-            out_ext = np.concatenate([out_ext, np.zeros((grow, 2))])
+            out_ext = np.concatenate([out_ext, np.zeros((grow, 4))])
             out_Rp = np.concatenate([out_Rp, np.zeros((grow, n_r))])
             continue
         if status == TABLE_STALE:
@@ -959,26 +1042,29 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
     else:
         f_t = float(fst[_F_T])
         f_h = float(fst[_F_H])
-        f_s = species[int(ist[_I_WORST])] if 0 <= ist[_I_WORST] < n else ""
+        f_s = (species[int(ist[_I_WORST])] if 0 <= ist[_I_WORST] < n
+               else ("gas temperature" if ist[_I_WORST] == n and energy else ""))
         cause = CAUSE_TEXT.get(int(ist[_I_CAUSE]), "")
         message = (f"integration failed at t = {f_t:.6g} s: {STATUS_TEXT[status]}"
                    f"{' (last rejection: ' + cause + ')' if cause else ''}; step size "
                    f"{f_h:.3g} s; species with the largest error: {f_s or '?'} "
                    f"({counters.n_steps} steps, {counters.n_rejected} rejected)")
-    yk = out_y[:m]
+    yk = out_y[:m, :n]
+    T_out = out_y[:m, n].copy() if energy else np.full(m, T_gas_K)
     result = KineticsResult(
         species=species, reactions=tuple(mech.reactions), times_s=out_t[:m].copy(),
-        densities_m3=yk.copy(), T_gas_K=np.full(m, T_gas_K), E_N_Td=out_cond[:m, 0].copy(),
+        densities_m3=yk.copy(), T_gas_K=T_out, E_N_Td=out_cond[:m, 0].copy(),
         mean_energy_eV=out_cond[:m, 1].copy(),
         electron_drift_velocity_m_s=out_cond[:m, 2].copy(),
         electron_density_m3=(yk[:, e_idx].copy() if e_idx >= 0 else np.zeros(m)),
-        integrated_rates_m3=out_R[:m].copy(), integrated_linear_m3=out_L[:m].copy(),
+        integrated_rates_m3=out_R[:m].copy(), integrated_linear_m3=out_L[:m, :n].copy(),
         expansion_factor=out_ext[:m, 0].copy(),
         integrated_electron_density_s_m3=out_ext[:m, 1].copy(),
         integrated_rates_parcel_m3=(out_Rp[:m].copy() if constant_total_density
                                     else out_R[:m].copy()),
-        linear_solver=solver_name,
-        clipped_m3=clipped, quasi_neutrality=float(fst[_F_QN]), counters=counters,
+        linear_solver=solver_name, energy_equation=energy_equation or "",
+        electron_energy_J_m3=out_ext[:m, 2].copy(), heat_loss_J_m3=out_ext[:m, 3].copy(),
+        clipped_m3=clipped[:n], quasi_neutrality=float(fst[_F_QN]), counters=counters,
         status=int(status), message=message, table_rebuild_times_s=tuple(rebuild_times),
         failure_time_s=f_t, failure_step_s=f_h, failure_species=f_s)
     if status != SUCCESS and raise_on_failure:

@@ -107,13 +107,38 @@ falloff rows, reverse rows, their forward rows), kernel arguments of the electro
 of the falloff rows, of all rows with unit forward rows, (k of the constant rows, k and
 dk/dn_M of the electron rows, their n_M, k, dk/dn_M and n_M of the falloff rows, 1/Kc)).
 
-Gas energy equation
--------------------
-The gas temperature is a fixed input (``cond[0]``). An energy equation would enter as one
-extra state variable appended after the species: its right-hand side (the heat released
-by the reactions, sum_j r_j (-dH_j), minus losses, over n c_v) and its Jacobian row and
-column (including dk/dT) go at the places marked ``ENERGY EQUATION`` in :func:`evaluate`,
-and ``cond[0]`` would then be read from the state.
+Gas energy equation (``cond[8]`` = 1 isobaric, 2 isochoric)
+-----------------------------------------------------------
+With an energy equation the state holds one more entry after the n_s species: the gas
+temperature T (K), and ``cond[0]`` is not read. Heavy particles and electrons share one
+enthalpy budget: the field gives the electrons the power P_e = e n_e w E (W m^-3, w the
+drift velocity of the table at the current E/N, E = (E/N) N with N the density of all
+species but the electrons), and every joule of it ends in the gas, as stored chemical or
+excitation enthalpy of the tracked species or as heat. Hence, with h_i(T) the enthalpy
+per particle of species i (NASA-7, excited states with their excitation energy, electrons
+at the gas temperature), omega_i the chemical source of species i (reaction rows only)::
+
+    isobaric:   sum_i n_i c_p,i dT/dt = P_e - sum_i h_i omega_i - G (T - T_wall)
+    isochoric:  sum_i n_i c_v,i dT/dt = P_e - sum_i u_i omega_i - G (T - T_wall)
+
+with u_i = h_i - k T and c_v,i = c_p,i - k (ideal gas). Reaction enthalpies (the heat of
+V-T relaxation, of recombination, of quenching, the Franck-Condon excess of electron-impact
+dissociation) and the electron's elastic, rotational and other untracked losses are all
+in these two terms; the split between them follows from the mechanism. The linear terms
+(surface losses, flow) move species without heating the gas: the heat of a surface
+reaction goes to the solid. G (``cond[9]``, W m^-3 K^-1) is a heat-transfer coefficient
+to a wall at ``cond[10]`` K. Isobaric runs are parcels at constant pressure: the
+expansion term above uses d ln V/dt = S / N_D + (dT/dt) / T, so that N = p / (k T).
+Energy balance of a reacting ideal-gas mixture: e.g. Kee, Coltrin & Glarborg (2003),
+Chemically Reacting Flow, Wiley, chapter 9 (constant-pressure and constant-volume
+reactors); the electron power as the only external source: common practice in global
+discharge models, no single source.
+
+Jacobian: the temperature row is exact (differentiating the line above, with the
+species Jacobian of the chemistry); the temperature column (dk/dT of every rate law,
+through the thermo of the reverse rows) is a forward difference with step 1e-7 T,
+computed by one extra right-hand-side evaluation per Jacobian. The energy equation uses
+the dense Jacobian (``JACOBIAN``): its row and column are dense.
 """
 
 from __future__ import annotations
@@ -124,6 +149,8 @@ import numpy as np
 from numba import njit
 
 from ..physics.ratelaws import rate_coefficients
+from ..physics.thermo import cp_R, h_RT
+from ..physics.constants import BOLTZMANN_J_K as K_B, ELEMENTARY_CHARGE_C as E_CHARGE
 from .electrons import interpolate_table
 
 
@@ -199,7 +226,7 @@ def add_linear_terms(y, linear, out):
     nu = linear[0]
     P = linear[1]
     S = linear[2]
-    n = y.shape[0]
+    n = nu.shape[0]
     for i in range(n):
         out[i] += S[i]
         if nu[i] != 0.0:
@@ -212,7 +239,7 @@ def add_linear_terms(y, linear, out):
 
 @njit(cache=True)
 def linear_terms(y, linear, out):
-    """The linear terms alone (``out`` overwritten), m^-3 s^-1."""
+    """The linear terms alone (``out`` overwritten; entries past the species set to 0), m^-3 s^-1."""
     for i in range(out.shape[0]):
         out[i] = 0.0
     add_linear_terms(y, linear, out)
@@ -246,7 +273,7 @@ def _jacobian_terms(y, mech, linear, k, dk, nM, J_out, w_out, split):
     third_body = mech[3]
     eff = mech[4]
     mult = mech[5]
-    n = y.shape[0]
+    n = linear[0].shape[0]
     n_reac = reac.shape[1]
     n_net = net.shape[1]
     for j in range(reac.shape[0]):
@@ -351,7 +378,21 @@ COND_EXPANSION = 4
 COND_ELECTRON = 5
 COND_PRESCRIBED = 6
 COND_ELECTRON_SLOPE = 7
-COND_SIZE = 8
+COND_ENERGY = 8
+COND_HEAT_LOSS = 9
+COND_T_WALL = 10
+COND_SIZE = 11
+#: values of ``cond[COND_ENERGY]``
+ENERGY_FIXED = 0
+ENERGY_ISOBARIC = 1
+ENERGY_ISOCHORIC = 2
+#: relative step of the finite-difference temperature column of the Jacobian
+TEMPERATURE_STEP = 1e-7
+#: slots of ``work`` used by the energy equation (see :func:`evaluate`)
+W_ENTHALPY = 16
+W_HEAT_CAPACITY = 17
+W_Y_PERTURBED = 18
+W_F_PERTURBED = 19
 
 
 #: kernel-argument entries that are per reaction row (``compiled.KERNEL_ARGS`` 0..5)
@@ -450,24 +491,26 @@ def _cached_rate_coefficients(kernel_args, work, Tg, E_N_Td, mean_eV, k_el, nM, 
 def evaluate(E_N_Td, y, model, f_out, J_out, mode):
     """Rates, right-hand side and Jacobian of the species balances at one state.
 
-    The only kernel that calls the rate-law kernel (compile time: every caller links it
-    once), through the rate-coefficient cache of the module docstring.
+    The only kernel that calls :func:`_balances` (and through it the rate-law kernel;
+    compile time: every caller links it once). With the energy equation (``cond[8]``) and
+    ``mode >= JACOBIAN`` it evaluates the balances twice, at T + dT and at T, and fills the
+    temperature column by the difference (module docstring).
 
     Parameters
     ----------
     E_N_Td : float
         Reduced field, Td.
-    y : ndarray (n_s,)
-        Densities, m^-3.
+    y : ndarray (n_s,) or (n_s + 1,)
+        Densities, m^-3; with the energy equation followed by the gas temperature, K.
     model : tuple
         See the module docstring; ``work`` receives k, dk/dn_M, n_M, the rates r and the
         electron coefficients.
-    f_out : ndarray (n_s,)
+    f_out : ndarray like ``y``
         Output (``mode >= RHS``): dn/dt, m^-3 s^-1 (with the expansion term and the
-        prescribed electron row when ``cond`` asks for them).
-    J_out : ndarray (n_s, n_s)
-        Output (``mode >= JACOBIAN``): d f / d y, s^-1. The rate coefficients' dependence
-        on the field (time) is not part of J; the stepper takes it through d f / d t.
+        prescribed electron row when ``cond`` asks for them), and dT/dt, K/s.
+    J_out : ndarray (len(y), len(y))
+        Output (``mode >= JACOBIAN``): d f / d y. The rate coefficients' dependence on the
+        field (time) is not part of J; the stepper takes it through d f / d t.
         ``JACOBIAN_SPLIT`` leaves out the rank-one part -u c^T of the expansion term.
     mode : int
         ``RATES`` (only ``work[3]`` = r), ``RHS``, ``JACOBIAN`` or ``JACOBIAN_SPLIT``.
@@ -476,6 +519,7 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode):
     -------
     (float, float)
         Mean electron energy (eV; NaN without an electron table) and drift velocity (m/s).
+        ``work[6]`` = [S / N_D, N_D, S, P_e (W m^-3), heat loss (W m^-3), dT/dt (K/s)].
 
     References
     ----------
@@ -483,6 +527,33 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode):
     action: e.g. Kee, Coltrin & Glarborg (2003), Chemically Reacting Flow, Wiley,
     sections 9.2-9.4.
     """
+    cond = model[4]
+    work = model[5]
+    n_s = model[2][0].shape[0]
+    passes = 2 if (cond[COND_ENERGY] != 0.0 and mode >= JACOBIAN) else 1
+    yp = work[W_Y_PERTURBED]
+    fp = work[W_F_PERTURBED]
+    dT = 0.0
+    res = (math.nan, math.nan)
+    for p in range(passes):
+        if p == passes - 1:
+            res = _balances(E_N_Td, y, model, f_out, J_out, mode)
+        else:
+            for i in range(y.shape[0]):
+                yp[i] = y[i]
+            dT = TEMPERATURE_STEP * max(y[n_s], 1.0)
+            yp[n_s] = y[n_s] + dT
+            dT = yp[n_s] - y[n_s]
+            _balances(E_N_Td, yp, model, fp, J_out, RHS)
+    if passes == 2:
+        for i in range(y.shape[0]):
+            J_out[i, n_s] = (fp[i] - f_out[i]) / dT
+    return res
+
+
+@njit(cache=True)
+def _balances(E_N_Td, y, model, f_out, J_out, mode):
+    """:func:`evaluate` at one state, without the temperature column of the Jacobian."""
     mech, kernel_args, linear, table, cond, work = model
     third_body = mech[3]
     eff = mech[4]
@@ -492,7 +563,9 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode):
     r = work[3]
     k_el = work[4]
     nM_row = work[5]
-    n_s = y.shape[0]
+    n_s = linear[0].shape[0]
+    n = y.shape[0]
+    energy = int(cond[COND_ENERGY])
     for b in range(eff.shape[0]):
         s_sum = 0.0
         for s in range(n_s):
@@ -504,6 +577,8 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode):
     mean_eV, drift = interpolate_table(table[0], table[1], table[2], table[3], table[4],
                                        E_N_Td, k_el)
     Tg = cond[0]
+    if energy != 0:
+        Tg = max(y[n_s], 1.0)
     _cached_rate_coefficients(kernel_args, work, Tg, E_N_Td, mean_eV, k_el, nM, k, dk)
     mult = mech[6]
     for j in range(k.shape[0]):
@@ -514,7 +589,7 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode):
         return mean_eV, drift
     net = mech[1]
     coef = mech[2]
-    for i in range(n_s):
+    for i in range(n):
         f_out[i] = 0.0
     for j in range(net.shape[0]):
         rj = r[j]
@@ -524,13 +599,44 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode):
             s = net[j, a]
             if s >= 0:
                 f_out[s] += coef[j, a] * rj
-    add_linear_terms(y, linear, f_out)
     e = int(cond[COND_ELECTRON])
+    scal = work[6]
+    # ENERGY EQUATION: heat from the chemistry (before the linear terms) and the field
+    Tdot = 0.0
+    heat_cap = 0.0
+    N_heavy = 0.0
+    P_e = 0.0
+    if energy != 0:
+        en = work[W_ENTHALPY]
+        cp = work[W_HEAT_CAPACITY]
+        h_RT(kernel_args[6], kernel_args[7], kernel_args[8], Tg, en)
+        cp_R(kernel_args[6], kernel_args[7], Tg, cp)
+        kT = K_B * Tg
+        q_chem = 0.0
+        for i in range(n_s):
+            if energy == 1:
+                en[i] = en[i] * kT
+                cp[i] = cp[i] * K_B
+            else:
+                en[i] = (en[i] - 1.0) * kT
+                cp[i] = (cp[i] - 1.0) * K_B
+            q_chem -= en[i] * f_out[i]
+            heat_cap += y[i] * cp[i]
+            if i != e:
+                N_heavy += y[i]
+        if e >= 0 and drift > 0.0 and E_N_Td > 0.0 and abs(drift) < math.inf:
+            P_e = E_CHARGE * y[e] * drift * E_N_Td * 1e-21 * N_heavy
+        q_loss = cond[COND_HEAT_LOSS] * (Tg - cond[COND_T_WALL])
+        Tdot = (P_e + q_chem - q_loss) / heat_cap if heat_cap > 0.0 else 0.0
+        f_out[n_s] = Tdot
+        scal[3] = P_e
+        scal[4] = q_loss
+        scal[5] = Tdot
+    add_linear_terms(y, linear, f_out)
     prescribed = cond[COND_PRESCRIBED] != 0.0 and e >= 0
     if prescribed:
         f_out[e] = cond[COND_ELECTRON_SLOPE]
     expand = cond[COND_EXPANSION] != 0.0
-    scal = work[6]
     g = 0.0
     n_D = 0.0
     if expand:
@@ -540,24 +646,48 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode):
             if not (prescribed and i == e):
                 n_D += y[i]
         g = sig / n_D if n_D > 0.0 else 0.0
-        scal[0] = g
         scal[1] = n_D
         scal[2] = sig
+        if energy == ENERGY_ISOBARIC:
+            g += Tdot / Tg
+        scal[0] = g
         for i in range(n_s):
             if not (prescribed and i == e):
                 f_out[i] -= y[i] * g
-    # ENERGY EQUATION: the gas-temperature right-hand side would be appended here.
     if mode >= JACOBIAN:
         split = mode == JACOBIAN_SPLIT
         w = work[9]
+        for i in range(n):
+            for m in range(n):
+                J_out[i, m] = 0.0
         for i in range(n_s):
             w[i] = 0.0
-            for m in range(n_s):
-                J_out[i, m] = 0.0
         _jacobian_terms(y, mech, linear, k, dk, nM, J_out, w, split)
+        if energy != 0:
+            # ENERGY EQUATION: the temperature row, exact (module docstring)
+            en = work[W_ENTHALPY]
+            cp = work[W_HEAT_CAPACITY]
+            nu = linear[0]
+            Pm = linear[1]
+            dP_heavy = 0.0
+            dP_e = 0.0
+            if P_e != 0.0:
+                dP_heavy = P_e / N_heavy
+                dP_e = E_CHARGE * drift * E_N_Td * 1e-21 * N_heavy
+            for m in range(n_s):
+                acc = 0.0
+                for i in range(n_s):
+                    acc += en[i] * J_out[i, m]
+                if nu[m] != 0.0:
+                    lin = -en[m]
+                    for q in range(n_s):
+                        lin += Pm[m, q] * en[q]
+                    acc -= nu[m] * lin
+                dP = dP_e if m == e else dP_heavy
+                J_out[n_s, m] = (dP - acc - Tdot * cp[m]) / heat_cap if heat_cap > 0.0 else 0.0
         if prescribed:
             w[e] = 0.0
-            for m in range(n_s):
+            for m in range(n):
                 J_out[e, m] = 0.0
         if expand:
             u = work[7]
@@ -573,7 +703,10 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode):
                     c[m] += J_out[i, m]
             for m in range(n_s):
                 diluted = not (prescribed and m == e)
-                c[m] = c[m] * inv - (g * inv if diluted else 0.0)
+                c[m] = c[m] * inv - ((g - Tdot / Tg) * inv if (diluted and energy == ENERGY_ISOBARIC)
+                                     else (g * inv if diluted else 0.0))
+                if energy == ENERGY_ISOBARIC:
+                    c[m] += J_out[n_s, m] / Tg
                 u[m] = y[m] if diluted else 0.0
                 if diluted:
                     J_out[m, m] -= g
@@ -583,7 +716,6 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode):
                     if ui != 0.0:
                         for m in range(n_s):
                             J_out[i, m] -= ui * c[m]
-        # ENERGY EQUATION: the temperature row and column would be filled here.
     return mean_eV, drift
 
 

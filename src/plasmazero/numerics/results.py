@@ -138,6 +138,14 @@ class KineticsResult:
         ``constant_total_density`` is off.
     linear_solver : str
         "dense" or "sparse": the linear algebra the stepper used.
+    energy_equation : str
+        "" (fixed gas temperature), "isobaric" or "isochoric".
+    electron_energy_J_m3 : ndarray (n_t,)
+        With an energy equation: cumulative integral of the electron power e n_e w E times
+        phi, J per initial volume (zeros otherwise).
+    heat_loss_J_m3 : ndarray (n_t,)
+        With an energy equation: cumulative integral of the wall heat loss times phi, J per
+        initial volume (zeros otherwise).
     """
 
     species: tuple
@@ -164,6 +172,9 @@ class KineticsResult:
     integrated_electron_density_s_m3: np.ndarray = None
     integrated_rates_parcel_m3: np.ndarray = None
     linear_solver: str = ""
+    energy_equation: str = ""
+    electron_energy_J_m3: np.ndarray = None
+    heat_loss_J_m3: np.ndarray = None
 
     @property
     def success(self):
