@@ -102,3 +102,30 @@ def test_packed_bed_geometry():
     assert lam == pytest.approx(0.5 * 1.3333e-3 / 2.404825557695773, rel=1e-4)
     with pytest.raises(ValueError):
         transport.packed_bed_void_geometry(1.2, 3e-3)
+
+
+@pytest.mark.parametrize("T_star", [0.5, 1.0, 1.5, 3.0, 10.0, 50.0])
+def test_lennard_jones_collision_integral_against_chemicals(T_star):
+    # the chemicals library's implementation of the same Neufeld, Janzen & Aziz (1972) fit:
+    # our constants are recalled, so agreement to 0.2 % checks them
+    from chemicals.lennard_jones import collision_integral_Neufeld_Janzen_Aziz
+    ref = collision_integral_Neufeld_Janzen_Aziz(T_star, 2, 2)
+    assert transport.lennard_jones_omega22(T_star) == pytest.approx(ref, rel=2e-3)
+
+
+@pytest.mark.parametrize("cas, mass_amu, sigma_m, eps_K, cp_R", [
+    ("7440-37-1", 39.948, 3.542e-10, 93.3, 2.5),        # argon
+    ("124-38-9", 44.01, 3.941e-10, 195.2, 4.466),       # CO2 (cp/R at 300 K, NIST-JANAF, from memory)
+    ("7782-44-7", 31.999, 3.467e-10, 106.7, 3.534),     # O2
+])
+def test_eucken_conductivity_against_perrys_table(cas, mass_amu, sigma_m, eps_K, cp_R):
+    # Perry's Chemical Engineers' Handbook, 8th ed., Table 2-314 (the copy in the chemicals
+    # library, DIPPR equation 102) at 300 K; Eucken's estimate within 15 %
+    from chemicals import thermal_conductivity as tc
+    from chemicals.dippr import EQ102
+    tc._load_k_data()
+    c = tc.k_data_Perrys_8E_2_314.loc[cas]
+    ref = float(EQ102(300.0, *[float(c[k]) for k in ("C1", "C2", "C3", "C4")]))
+    lam = transport.eucken_thermal_conductivity_W_m_K(
+        300.0, mass_amu, sigma_m, cp_R * 1.380649e-23, transport.lennard_jones_omega22(300.0 / eps_K))
+    assert lam == pytest.approx(ref, rel=0.15)

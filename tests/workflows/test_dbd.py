@@ -137,3 +137,79 @@ def test_ozone_generator_yield_and_concentration():
     g_per_m3_stp = x * 101325 / (1.380649e-23 * 273.15) * 47.998 / 6.02214076e23
     assert 100.0 < g_per_kWh < 800.0, g_per_kWh
     assert 5.0 < g_per_m3_stp < 300.0, g_per_m3_stp
+
+
+@pytest.fixture(scope="module")
+def co2_heated():
+    """Pure CO2 with the gas energy equation, adiabatic (no wall loss) and with conduction."""
+    runs = {}
+    for key, extra in (("adiabatic", {"heat_loss_W_m3_K": 0.0}), ("conduction", {})):
+        sc = _scenario("co2_splitting", **{"discharge.pulses": 6,
+                                            "gas_temperature": {"mode": "energy_equation", **extra}})
+        runs[key] = dbd.run(dbd.prepare(sc, example_path("co2_splitting")))
+    return runs
+
+
+def _parcel_enthalpy_J(result, row):
+    from plasmazero.physics.thermo import h_RT
+    mech = result.setup.compiled
+    T = float(result.gas_temperature_K[row])
+    h = np.empty(len(mech.species))
+    h_RT(mech.nasa7_coeffs, mech.nasa7_T_K, mech.energy_shift_J_mol, T, h)
+    return float(np.sum(h * 1.380649e-23 * T * result.densities_m3[row]) * result.expansion_factor[row])
+
+
+def test_energy_equation_first_law_and_conservation(co2_heated):
+    res = co2_heated["adiabatic"]
+    s = analysis.summary(res)
+    # the energy given to the parcel is still the specific energy input
+    assert s["energy_deposited_J_m3"] == pytest.approx(s["energy_input_J_m3"], rel=1e-6)
+    # first law at constant pressure, adiabatic: the enthalpy per inlet volume rises by the
+    # deposited energy (common practice, no source; thermo of the shipped NASA-7 tables)
+    dH = _parcel_enthalpy_J(res, -1) - _parcel_enthalpy_J(res, 0)
+    assert dH == pytest.approx(s["energy_deposited_J_m3"], rel=1e-4)
+    assert s["element_balance_error"] < 1e-8
+    # 2 eV per molecule, of which ~12 % stored as CO + 1/2 O2: the rest heats CO2
+    # (c_p ~ 37 J/mol/K near 300-1000 K, NIST-JANAF, from memory) by several hundred kelvin
+    assert s["gas_temperature_exit_K"] > 600.0
+    assert s["gas_temperature_mode"] == "energy_equation"
+
+
+def _thermal_conductivity_chemicals():
+    """CO2 at 300 K: Perry's Handbook (8th ed.) Table 2-314 correlation, from the copy in
+    the chemicals library (DIPPR equation 102)."""
+    from chemicals import thermal_conductivity as tc
+    from chemicals.dippr import EQ102
+    tc._load_k_data()
+    c = tc.k_data_Perrys_8E_2_314.loc["124-38-9"]
+    return float(EQ102(300.0, *[float(c[k]) for k in ("C1", "C2", "C3", "C4")]))
+
+
+def test_conduction_keeps_a_dbd_near_the_wall_temperature(co2_heated):
+    # a 1 mm gap conducts the heat of each filament away within milliseconds, so between
+    # filaments the gas returns to the wall: DBD gas stays within tens of kelvin of the
+    # wall on average (Kogelschatz 2003, Plasma Chem. Plasma Process. 23, 1, from memory)
+    res = co2_heated["conduction"]
+    s = analysis.summary(res)
+    assert s["gas_temperature_exit_K"] < 320.0
+    assert s["gas_temperature_max_K"] > s["gas_temperature_exit_K"] + 20.0   # filaments heat
+    assert s["element_balance_error"] < 1e-8
+    # CO and O2 the main products, near the 2 : 1 of DBD CO2-splitting experiments (e.g.
+    # Paulussen et al. 2010, Plasma Sources Sci. Technol. 19, 034015, from memory): the
+    # filament heating destroys part of the ozone that a fixed 330 K keeps (4.5 : 1 there,
+    # mechanisms/README.md); measured 2.6 : 1 with 40 filaments, see the assertion's value
+    bed = {r["species"]: r["mole_fraction"] for r in analysis.bed_feed(res)["rows"]}
+    assert 1.5 < bed["CO"] / bed["O2"] < 3.2, bed["CO"] / bed["O2"]
+    setup = res.setup
+    # the default loss: the Eucken estimate for CO2 at 300 K against Perry's table
+    # (0.0166 W/m/K), within the 10-20 % known for Eucken's factor (measured: -2 %)
+    assert setup.thermal_conductivity_W_m_K == pytest.approx(_thermal_conductivity_chemicals(), rel=0.15)
+    assert setup.heat_loss_W_m3_K == pytest.approx(
+        setup.thermal_conductivity_W_m_K * (math.pi / 1e-3) ** 2, rel=1e-12)
+
+
+def test_energy_equation_keys_are_checked():
+    with pytest.raises(InputError, match="gas_temperature.temperature_K"):
+        _scenario("co2_splitting", gas_temperature={"mode": "energy_equation", "temperature_K": 350})
+    with pytest.raises(InputError, match="gas_temperature.heat_loss_W_m3_K"):
+        _scenario("co2_splitting", gas_temperature={"mode": "fixed", "heat_loss_W_m3_K": 1.0})

@@ -41,6 +41,12 @@ section "Scenario files")::
     gas_temperature:
       mode: fixed                  # fixed | energy_equation
       temperature_K: 300           # fixed only; default: the feed temperature
+      # energy_equation only (the gas starts at the feed temperature; isobaric parcel):
+      # wall_temperature_K: 300        # electrodes, dielectric, pellets; default: feed
+      # thermal_conductivity_W_m_K: 0.017  # default: kinetic-theory estimate of the feed
+      # heat_loss_W_m3_K: 1.0e5        # default: conduction, lambda / Lambda^2 with
+      #                                # Lambda = gap / pi, or the bed's void diffusion
+      #                                # length in a packed bed; 0 = adiabatic
     bed:
       downstream_transit_s: 0.0    # afterglow time between the discharge exit and the catalyst
     solver: {rtol: 1.0e-5, atol_floor_m3: 1.0e6}
@@ -100,7 +106,9 @@ _SCHEMA = {
         "arrival": ("periodic", "random"),
         "seed": int,
     },
-    "gas_temperature": {"mode": ("fixed", "energy_equation"), "temperature_K": float},
+    "gas_temperature": {"mode": ("fixed", "energy_equation"), "temperature_K": float,
+                        "wall_temperature_K": float, "thermal_conductivity_W_m_K": float,
+                        "heat_loss_W_m3_K": float},
     "bed": {"downstream_transit_s": float},
     "solver": {"rtol": float, "atol_floor_m3": float, "max_steps": int},
     "output": {"eedf_samples": int},
@@ -340,6 +348,22 @@ def validate_scenario(doc, file=None):
     if gas_t["mode"] == "fixed":
         gas_t.setdefault("temperature_K", feed.get("temperature_K", 300.0))
         _positive(gas_t, "temperature_K", "gas_temperature", file, None, problems)
+        for key in ("wall_temperature_K", "thermal_conductivity_W_m_K", "heat_loss_W_m3_K"):
+            if key in gas_t:
+                problems.append(format_problem(file, f"gas_temperature.{key}",
+                                               "applies to mode energy_equation only"))
+    else:
+        if "temperature_K" in gas_t:
+            problems.append(format_problem(file, "gas_temperature.temperature_K",
+                                           "applies to mode fixed only (the energy equation "
+                                           "starts from feed.temperature_K)"))
+        gas_t.setdefault("wall_temperature_K", feed.get("temperature_K", 300.0))
+        _positive(gas_t, "wall_temperature_K", "gas_temperature", file, None, problems)
+        if "thermal_conductivity_W_m_K" in gas_t:
+            _positive(gas_t, "thermal_conductivity_W_m_K", "gas_temperature", file, None, problems)
+        if "heat_loss_W_m3_K" in gas_t:
+            _positive(gas_t, "heat_loss_W_m3_K", "gas_temperature", file, None, problems,
+                      allow_zero=True)
     bed_out = sc.setdefault("bed", {})
     bed_out.setdefault("downstream_transit_s", 0.0)
     _positive(bed_out, "downstream_transit_s", "bed", file, None, problems, allow_zero=True)

@@ -17,6 +17,9 @@ def summary_text(s):
     lines.append(f"mechanism {s['mechanism']}; power {s['power_W']:.4g} W; SEI {s['sei_kJ_L']:.4g} kJ/L "
                  f"= {s['sei_eV_per_molecule']:.4g} eV/molecule; residence time {s['residence_time_s']:.4g} s; "
                  f"{s['pressure_Pa'] / 1e5:.4g} bar, {s['gas_temperature_K']:.4g} K; filaments {s['pulses']}")
+    if s.get("gas_temperature_mode") == "energy_equation":
+        lines.append(f"gas temperature (energy equation): inlet {s['gas_temperature_K']:.4g} K, "
+                     f"exit {s['gas_temperature_exit_K']:.4g} K, highest {s['gas_temperature_max_K']:.4g} K")
     lines.append("conversion: " + ", ".join(f"{k} {_pct(v).strip()}" for k, v in s["conversion"].items()))
     for el, sel in s["selectivity"].items():
         top = list(sel.items())[:5]

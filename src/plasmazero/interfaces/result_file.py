@@ -73,7 +73,8 @@ def write_result(path, result, summary, bed_feed):
             f["stoichiometry"] = setup.compiled.stoichiometry
             f["time_s"] = result.times_s
             f["densities_m3"] = result.densities_m3
-            f["gas_temperature_K"] = np.full(result.times_s.size, setup.T_gas_K)
+            f["gas_temperature_K"] = (np.full(result.times_s.size, setup.T_gas_K)
+                                      if result.gas_temperature_K is None else result.gas_temperature_K)
             f["E_N_Td"] = result.E_N_Td
             f["electron_density_m3"] = result.electron_density_m3
             f["mean_electron_energy_eV"] = result.mean_energy_eV

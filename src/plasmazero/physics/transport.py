@@ -82,3 +82,61 @@ def packed_bed_void_geometry(porosity, pellet_diameter_m):
         raise ValueError("pellet_diameter_m must be positive")
     d_h = 2.0 / 3.0 * porosity / (1.0 - porosity) * pellet_diameter_m
     return 0.5 * d_h / BESSEL_J0_ZERO, 0.25 * d_h
+
+
+def lennard_jones_omega22(T_star):
+    """Reduced collision integral Omega(2,2)* of the Lennard-Jones (12-6) potential.
+
+    Fit of Neufeld, Janzen & Aziz (1972), J. Chem. Phys. 57, 1100 (constants recalled from
+    the publication; stated accuracy 0.1 % for 0.3 <= T* <= 100), T* = k T / epsilon.
+    """
+    return (1.16145 * T_star ** -0.14874 + 0.52487 * math.exp(-0.77320 * T_star)
+            + 2.16178 * math.exp(-2.43787 * T_star))
+
+
+def eucken_thermal_conductivity_W_m_K(T_K, mass_amu, diameter_m, cp_J_K, omega22=1.0):
+    """Thermal conductivity of a dilute gas: Chapman-Enskog viscosity with Eucken's factor.
+
+    eta = (5/16) sqrt(pi m k T) / (pi d^2 Omega(2,2)*)   (first Chapman-Enskog
+    approximation; Omega(2,2)* = 1 for rigid spheres, :func:`lennard_jones_omega22` for a
+    Lennard-Jones gas), lambda = (eta / m) (c_v + 9/4 k) with c_v = c_p - k per molecule
+    (Eucken's correction for internal degrees of freedom; for a monatomic gas it is the
+    exact first approximation lambda = 15/4 k eta / m). An estimate, not a
+    transport-property model: Eucken's factor is known to err by 10-20 % for polyatomic
+    molecules.
+
+    Parameters
+    ----------
+    T_K : float
+        Gas temperature, K.
+    mass_amu : float
+        Molecular mass, amu.
+    diameter_m : float
+        Collision diameter, m.
+    cp_J_K : float
+        Heat capacity at constant pressure per molecule, J/K.
+
+    References
+    ----------
+    Chapman, S. & Cowling, T. G. (1970), The Mathematical Theory of Non-uniform Gases,
+    3rd ed., Cambridge, section 10.21 (rigid spheres); Hirschfelder, Curtiss & Bird (1954),
+    Molecular Theory of Gases and Liquids, Wiley, eq. (8.2-18); Eucken, A. (1913), Phys. Z.
+    14, 324.
+    """
+    m = mass_amu * ATOMIC_MASS_KG
+    eta = 5.0 / 16.0 * math.sqrt(math.pi * m * BOLTZMANN_J_K * T_K) / (math.pi * diameter_m**2 * omega22)
+    return eta / m * (cp_J_K - BOLTZMANN_J_K + 2.25 * BOLTZMANN_J_K)
+
+
+def conduction_heat_loss_W_m3_K(thermal_conductivity_W_m_K, diffusion_length_m):
+    """Heat-transfer coefficient of conduction to walls at a fixed temperature, W m^-3 K^-1.
+
+    G = lambda / Lambda^2: the decay rate of the fundamental mode of the heat equation in a
+    region of diffusion length Lambda (Lambda = gap / pi between two plates), times the
+    heat capacity per volume, so that n c_p dT/dt = -G (T - T_wall) for the mean
+    temperature excess (the same diffusion-length argument as for particle losses;
+    e.g. Carslaw & Jaeger 1959, Conduction of Heat in Solids, Oxford, section 3.3).
+    """
+    if diffusion_length_m <= 0.0:
+        raise ValueError("diffusion_length_m must be positive")
+    return thermal_conductivity_W_m_K / diffusion_length_m**2

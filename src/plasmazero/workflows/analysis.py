@@ -145,6 +145,9 @@ def summary(result):
         "sei_eV_per_molecule": setup.sei_eV_per_molecule,
         "residence_time_s": setup.residence_time_s,
         "gas_temperature_K": setup.T_gas_K,
+        "gas_temperature_mode": setup.scenario["gas_temperature"]["mode"],
+        "gas_temperature_exit_K": float(gas_temperature_K(result)[_zone_end(result, 0)]),
+        "gas_temperature_max_K": float(gas_temperature_K(result).max()),
         "pressure_Pa": setup.scenario["feed"]["pressure_Pa"],
         "pulses": int(len(setup.pulse_starts_s)) if setup.scenario["discharge"]["mode"] == "filaments" else 0,
         "conversion": conversion,
@@ -163,6 +166,14 @@ def summary(result):
         "table_rebuilds": result.table_rebuilds,
         "wall_time_s": result.wall_time_s,
     }
+
+
+def gas_temperature_K(result):
+    """Gas temperature at the output times, K (the fixed one when there is no energy equation)."""
+    T = getattr(result, "gas_temperature_K", None)
+    if T is None:
+        return np.full(result.times_s.size, float(result.setup.T_gas_K))
+    return np.asarray(T, dtype=float)
 
 
 def _time_mean(t, values, mask):
@@ -200,23 +211,26 @@ def bed_feed(result):
     setup = result.setup
     sc = setup.scenario
     p = sc["feed"]["pressure_Pa"]
-    T = setup.T_gas_K
+    T_t = gas_temperature_K(result)
     masses = _species_masses(result)
     in_zone = result.zone == 0
     if sc["bed"]["downstream_transit_s"] > 0:
         where = f"catalyst bed after {sc['bed']['downstream_transit_s']:g} s of afterglow downstream of the discharge"
         dens = result.densities_m3[-1]
         peak = dens
+        T = float(T_t[-1])
     elif sc["reactor"].get("packed_bed"):
         where = "packed bed inside the discharge: time average over the discharge zone"
         dens = np.array([_time_mean(result.times_s, result.densities_m3[:, i], in_zone)
                          for i in range(len(result.species))])
         pulse = result.in_pulse & in_zone
         peak = result.densities_m3[pulse].max(axis=0) if pulse.any() else dens
+        T = _time_mean(result.times_s, T_t, in_zone)
     else:
         where = "discharge exit"
         dens = result.densities_m3[_zone_end(result, 0)]
         peak = dens
+        T = float(T_t[_zone_end(result, 0)])
     total = float(np.sum(dens))
     rows = []
     for i, name in enumerate(result.species):

@@ -29,6 +29,14 @@ COLLISION_DIAMETER_M = {
     "CH3OH": 3.626e-10,
 }
 DEFAULT_DIAMETER_M = 3.0e-10
+#: Lennard-Jones well depths epsilon/k, K, of the same table as COLLISION_DIAMETER_M
+#: (Poling, Prausnitz & O'Connell 2001, Appendix B, from memory), for the collision
+#: integral of the thermal-conductivity estimate; gases without a value count as rigid
+#: spheres (Omega = 1)
+LJ_EPSILON_K = {
+    "H2": 59.7, "O2": 106.7, "N2": 71.4, "CO": 91.7, "CO2": 195.2, "H2O": 809.1, "Ar": 93.3,
+    "He": 10.22, "CH4": 148.6, "CH3OH": 481.8,
+}
 
 ATOMIC_MASS_AMU = {"H": 1.008, "C": 12.011, "O": 15.999, "N": 14.007, "Ar": 39.948,
                    "He": 4.0026, "E": 5.48579909e-4}
@@ -198,3 +206,50 @@ def surface_loss_terms(scenario, species, compositions, T_K, file=None):
     if problems:
         raise InputError(problems)
     return nu, prod
+
+
+def heat_loss_coefficient(scenario, compositions, cp_J_K, T_K):
+    """Wall heat-transfer coefficient G (W m^-3 K^-1) and thermal conductivity (W/m/K).
+
+    ``gas_temperature.heat_loss_W_m3_K`` when given; otherwise conduction,
+    G = lambda / Lambda^2 (:func:`plasmazero.physics.transport.conduction_heat_loss_W_m3_K`),
+    with Lambda = gap / pi between the electrodes (planar, and coaxial with a gap small
+    against the radii), or the diffusion length of the voids in a packed bed (the pellets
+    are the walls). lambda is ``gas_temperature.thermal_conductivity_W_m_K`` or the
+    mole-fraction mean of the Eucken estimates (Lennard-Jones collision integral) of the
+    feed gases at ``T_K``
+    (:func:`plasmazero.physics.transport.eucken_thermal_conductivity_W_m_K`; a rough
+    mixing rule, within the 10-20 % of the estimate itself for similar molecules, worse
+    for H2 mixtures: give the measured value when it matters).
+
+    Parameters
+    ----------
+    scenario : dict
+        Validated scenario.
+    compositions : dict
+        Species -> element composition.
+    cp_J_K : dict
+        Feed species -> c_p per molecule at ``T_K``, J/K.
+    T_K : float
+        Feed temperature, K.
+    """
+    gas_t = scenario["gas_temperature"]
+    feed = scenario["feed"]
+    lam = gas_t.get("thermal_conductivity_W_m_K")
+    if lam is None:
+        lam = 0.0
+        for gas, x in feed["mole_fractions"].items():
+            if x > 0:
+                eps = LJ_EPSILON_K.get(gas)
+                omega = 1.0 if eps is None else transport.lennard_jones_omega22(T_K / eps)
+                lam += x * transport.eucken_thermal_conductivity_W_m_K(
+                    T_K, species_mass_amu(compositions[gas]),
+                    COLLISION_DIAMETER_M.get(gas, DEFAULT_DIAMETER_M), cp_J_K[gas], omega)
+    if "heat_loss_W_m3_K" in gas_t:
+        return float(gas_t["heat_loss_W_m3_K"]), float(lam)
+    bed = scenario["reactor"].get("packed_bed")
+    if bed:
+        length, _ = transport.packed_bed_void_geometry(bed["porosity"], bed["pellet_diameter_m"])
+    else:
+        length = scenario["reactor"]["gap_m"] / math.pi
+    return transport.conduction_heat_loss_W_m3_K(lam, length), float(lam)
