@@ -24,7 +24,7 @@ from chemicals.reaction import Hfg
 from plasmazero.data.shipped import shipped_root
 from plasmazero.numerics import FieldProfile, integrate
 from plasmazero.numerics.integrate import build_model
-from plasmazero.numerics.kinetics import JACOBIAN, evaluate
+from plasmazero.numerics.kinetics import JACOBIAN, RHS, evaluate, heat_arrays, temperature_column
 from plasmazero.physics.compiled import load_compiled_mechanism
 from plasmazero.physics.thermo import h_RT
 from plasmazero.workflows import dbd, electron_tables as et
@@ -190,7 +190,8 @@ def test_temperature_row_and_column_against_finite_differences(co2_case):
         n = y.size
         f = np.zeros(n)
         J = np.zeros((n, n))
-        evaluate(150.0, y, model, f, J, JACOBIAN)
+        evaluate(150.0, y, model, f, J, JACOBIAN, heat_arrays(model))
+        temperature_column(150.0, y, model, f, J)
         J = J.copy()
         f0 = f.copy()
         for m in (idx["CO2"], idx["e"], idx["O"], n - 1):
@@ -198,7 +199,7 @@ def test_temperature_row_and_column_against_finite_differences(co2_case):
             yp = y.copy()
             yp[m] += d
             fp = np.zeros(n)
-            evaluate(150.0, yp, model, fp, np.zeros((n, n)), JACOBIAN)
+            evaluate(150.0, yp, model, fp, np.zeros((n, n)), RHS, heat_arrays(model))
             col = (fp - f0) / (yp[m] - y[m])
             scale = np.abs(J[:, m]).max()
             np.testing.assert_allclose(J[:, m], col, rtol=1e-3, atol=1e-4 * scale)

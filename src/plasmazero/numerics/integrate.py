@@ -127,15 +127,16 @@ from .electrons import ElectronTable, interpolate_table, table_arrays
 from .field import as_density_profile, as_field, density_segments, segments
 from .kinetics import (COND_ELECTRON, COND_ELECTRON_SLOPE, COND_ENERGY, COND_EXPANSION,
                        COND_HEAT_LOSS, COND_PRESCRIBED, COND_SIZE, COND_T_WALL,
-                       ENERGY_ISOBARIC, ENERGY_ISOCHORIC, JACOBIAN, JACOBIAN_SPLIT, RATES, RHS, charge_imbalance,
-                       clear_rate_cache, evaluate, field_at, jacobian_pattern, linear_terms,
+                       ENERGY_ISOBARIC, ENERGY_ISOCHORIC, TEMPERATURE_STEP, JACOBIAN, JACOBIAN_SPLIT, RATES, RHS, charge_imbalance,
+                       clear_rate_cache, evaluate, field_at, heat_arrays, jacobian_pattern, linear_terms,
                        net_stoichiometry, rate_cache)
 from .linalg import sparse_symbolic
 from .results import (BUFFER_FULL, CAUSE_ERROR, CAUSE_NEGATIVE, CAUSE_NON_FINITE,
                       CAUSE_SINGULAR, CAUSE_TEXT, MAX_STEPS, NON_FINITE_STATE, STATUS_TEXT,
                       STEP_TOO_SMALL, SUCCESS, TABLE_STALE, Counters, IntegrationError,
                       KineticsResult)
-from .rosenbrock import ORDER, dense_coefficients, dense_eval, rodas4_step
+from .rosenbrock import (N_STAGES, ORDER, WB_SIZE, dense_coefficients, dense_eval,
+                         rodas4_factor, rodas4_finish, rodas4_stage_solve, rodas4_stage_state)
 
 #: relative step in E/N of the finite-difference time derivative of f (about eps^(1/3))
 FIELD_DERIVATIVE_STEP = 1e-5
@@ -209,12 +210,13 @@ def _all_finite(v):
 
 
 @njit(cache=True)
-def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_f, opts_i,
+def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, heat, rtol, atol, opts_f, opts_i,
          t_eval, out_t, out_y, out_R, out_L, out_cond, out_ext, out_Rp, R_cum, L_cum, cum,
          Rp_cum, clipped, partner_idx, partner_ref, heavy, charge, sp):
     """The step loop; returns a status (``results`` codes). All state lives in the arrays.
 
-    ``seg_ne`` (n_seg, 3): per segment [prescribed (1/0), n_e at its start, slope] of the
+    ``heat``: None (fixed gas temperature; the energy-equation code is then pruned from
+    this specialisation) or the scratch of ``kinetics.heat_arrays``. ``seg_ne`` (n_seg, 3): per segment [prescribed (1/0), n_e at its start, slope] of the
     electron density; ``cum`` = [integral of S/N_D dt (ln of the expansion factor),
     integral of n_e dt, integral of P_e phi dt, integral of the heat loss phi dt]; ``Rp_cum``
     the parcel integrals of the rates; ``out_ext`` (cap, 4) and ``out_Rp`` (cap, n_r) their
@@ -224,7 +226,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_
     or a full output buffer (``BUFFER_FULL``); the driver may call it again to continue.
     Starting-step estimate, df/dt and the quadrature of the rates are written out here
     rather than as separate kernels: every kernel that calls the rate-law kernel links and
-    compiles it again, so their number is kept at three (evaluate, rodas4_step, _run).
+    compiles it again, so their number is kept at two (evaluate, _run).
     """
     n = y.shape[0]
     n_r = R_cum.shape[0]
@@ -242,6 +244,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_
     lu = np.empty((n, n))
     piv = np.empty(n, dtype=np.int64)
     U = np.empty((6, n))
+    wb = np.zeros(WB_SIZE)
     h1 = np.empty(n)
     h2 = np.empty(n)
     yd = np.empty(n)
@@ -255,7 +258,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_
     inv_sqrt3 = 1.0 / math.sqrt(3.0)
     e_idx = int(cond[COND_ELECTRON])
     expand = cond[COND_EXPANSION] != 0.0
-    energy = cond[COND_ENERGY] != 0.0
+    energy = heat is not None and cond[COND_ENERGY] != 0.0
 
     t = fst[_F_T]
     h = fst[_F_H]
@@ -314,9 +317,22 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_
             status = MAX_STEPS
             break
         E_now = field_at(cond, t)
-        evaluate(E_now, y, model, f0, J, jac_mode)
+        evaluate(E_now, y, model, f0, J, jac_mode, heat)
         ist[_I_JAC] += 1
         ist[_I_RHS] += 1
+        if heat is not None and energy:
+            # temperature column of the Jacobian by a forward difference (kinetics
+            # docstring; written here so that no other kernel links evaluate)
+            n_s = n - 1
+            for i in range(n):
+                yd[i] = y[i]
+            dT = TEMPERATURE_STEP * max(y[n_s], 1.0)
+            yd[n_s] = y[n_s] + dT
+            dT = yd[n_s] - y[n_s]
+            evaluate(E_now, yd, model, ftmp, J, RHS, heat)
+            ist[_I_RHS] += 1
+            for i in range(n):
+                J[i, n_s] = (ftmp[i] - f0[i]) / dT
         if not (_all_finite(f0) and _all_finite(J)):
             status = NON_FINITE_STATE
             ist[_I_CAUSE] = CAUSE_NON_FINITE
@@ -333,8 +349,8 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_
         use_fdt = cond[3] != 0.0
         if use_fdt:
             dE = FIELD_DERIVATIVE_STEP * max(E_now, 1.0)
-            evaluate(E_now + dE, y, model, ftmp, J, RHS)
-            evaluate(E_now + 2.0 * dE, y, model, fstage, J, RHS)
+            evaluate(E_now + dE, y, model, ftmp, J, RHS, heat)
+            evaluate(E_now + 2.0 * dE, y, model, fstage, J, RHS, heat)
             ist[_I_RHS] += 2
             fac = cond[3] / (2.0 * dE)
             for i in range(n):
@@ -356,7 +372,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_
                 h0 = min(h0, span)
                 for i in range(n):
                     ystage[i] = y[i] + h0 * f0[i]
-                evaluate(field_at(cond, t + h0), ystage, model, fstage, J, RHS)
+                evaluate(field_at(cond, t + h0), ystage, model, fstage, J, RHS, heat)
                 ist[_I_RHS] += 1
                 for i in range(n):
                     fstage[i] -= f0[i]
@@ -387,8 +403,19 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_
                 h = t_stop - t
                 landing = True
             ist[_I_STEPS] += 1
-            info = rodas4_step(t, y, h, f0, J, fdt, use_fdt, model, lu, piv, U, ystage,
-                               fstage, ynew, sp)
+            # one RODAS4 step (rosenbrock.rodas4_step, its stages written out here so that
+            # the right-hand side is linked into this kernel only)
+            info = rodas4_factor(h, J, model, lu, piv, sp, wb)
+            if info == 0:
+                for s_ in range(N_STAGES):
+                    if s_ == 0:
+                        for i in range(n):
+                            fstage[i] = f0[i]
+                    else:
+                        ts = rodas4_stage_state(s_, t, y, h, U, ystage)
+                        evaluate(field_at(cond, ts), ystage, model, fstage, J, RHS, heat)
+                    rodas4_stage_solve(s_, h, fstage, fdt, use_fdt, model, lu, piv, U, sp, wb)
+                rodas4_finish(y, U, ynew)
             ist[_I_LU] += 1
             cause = 0
             worst = 0
@@ -464,7 +491,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol, atol, opts_
                     for node_sign in range(2):
                         node = mid + (2 * node_sign - 1) * half * inv_sqrt3
                         dense_eval(node, y, ynew, h1, h2, yd)
-                        evaluate(field_at(cond, t + node * h), yd, model, ftmp, J, quad_mode)
+                        evaluate(field_at(cond, t + node * h), yd, model, ftmp, J, quad_mode, heat)
                         if do_rates:
                             r = work[3]
                             for j in range(n_r):
@@ -582,7 +609,7 @@ def _electron_index(mech, electron_species):
     return -1
 
 
-def _expansion_factor(mech, y_out, phi_quadrature, linear):
+def _expansion_factor(mech, mech_arrays, y_start, y_out, phi_quadrature, linear):
     """The parcel's expansion factor V(t)/V(t0) at the output rows.
 
     The compiled loop integrates ln(phi) = integral of d ln V/dt by quadrature; its error
@@ -604,14 +631,19 @@ def _expansion_factor(mech, y_out, phi_quadrature, linear):
     counts = np.asarray(counts, dtype=float)
     keep = np.array([e != "E" for e in elements], dtype=bool) if elements else np.ones(counts.shape[0], bool)
     atoms = counts[keep].sum(axis=0)                          # atoms per molecule of each species
+    net_index, net_coeff = mech_arrays[1], mech_arrays[2]
+    change = np.where(net_index >= 0, net_coeff * atoms[np.maximum(net_index, 0)], 0.0).sum(axis=1)
+    if np.any(np.abs(change) > 1e-9 * max(float(atoms.max()), 1.0)):
+        return phi_quadrature.copy()                          # the reactions do not keep atoms
     nu, P = linear[0], linear[1]
     for i in np.flatnonzero(nu != 0.0):
         if abs(float(P[i] @ atoms) - atoms[i]) > 1e-12 * max(atoms[i], 1.0):
             return phi_quadrature.copy()                      # a linear term removes atoms
     A = y_out @ atoms
-    if not (A[0] > 0.0 and np.all(A > 0.0)):
+    A0 = float(y_start @ atoms)
+    if not (A0 > 0.0 and np.all(A > 0.0)):
         return phi_quadrature.copy()
-    return A[0] / A
+    return A0 / A
 
 
 def _mole_fractions(y, species, heavy, which):
@@ -728,8 +760,7 @@ def build_model(mech, T_gas_K, *, electron_table=None, loss_frequency_s=None,
     kernel_args = tuple(mech.kernel_args)
     work = (np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_p),
             np.zeros(n_tb), np.zeros(6), np.zeros(n), np.zeros(n), np.zeros(n)) + \
-        rate_cache(kernel_args, ratelaws) + \
-        (np.zeros(n), np.zeros(n), np.zeros(n + 1), np.zeros(n + 1))
+        rate_cache(kernel_args, ratelaws) + (np.zeros(n), np.zeros(n))
     return (mech_arrays, kernel_args, linear, table_arrays(table, n_p), cond, work)
 
 
@@ -1029,9 +1060,10 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
     out_ext[:n0, 0] = 1.0
     ist[_I_OUT] = n0
     fst[_F_QN] = charge_imbalance(y, charge, opts_f[_O_QN_FLOOR])
+    y_start = y[:n].copy()
 
     while True:
-        status = _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, rtol_v, atol_v,
+        status = _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, heat_arrays(model), rtol_v, atol_v,
                       opts_f, opts_i, t_eval, out_t, out_y, out_R, out_L, out_cond, out_ext,
                       out_Rp, R_cum, L_cum, cum, Rp_cum, clipped, partner_idx, partner_ref,
                       heavy, charge, sp)
@@ -1092,7 +1124,7 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
         electron_drift_velocity_m_s=out_cond[:m, 2].copy(),
         electron_density_m3=(yk[:, e_idx].copy() if e_idx >= 0 else np.zeros(m)),
         integrated_rates_m3=out_R[:m].copy(), integrated_linear_m3=out_L[:m, :n].copy(),
-        expansion_factor=(_expansion_factor(mech, yk, out_ext[:m, 0], model[2])
+        expansion_factor=(_expansion_factor(mech, model[0], y_start, yk, out_ext[:m, 0], model[2])
                           if constant_total_density else out_ext[:m, 0].copy()),
         integrated_electron_density_s_m3=out_ext[:m, 1].copy(),
         integrated_rates_parcel_m3=(out_Rp[:m].copy() if constant_total_density

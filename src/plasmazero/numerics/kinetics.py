@@ -391,8 +391,6 @@ TEMPERATURE_STEP = 1e-7
 #: slots of ``work`` used by the energy equation (see :func:`evaluate`)
 W_ENTHALPY = 16
 W_HEAT_CAPACITY = 17
-W_Y_PERTURBED = 18
-W_F_PERTURBED = 19
 
 
 #: kernel-argument entries that are per reaction row (``compiled.KERNEL_ARGS`` 0..5)
@@ -488,13 +486,14 @@ def _cached_rate_coefficients(kernel_args, work, Tg, E_N_Td, mean_eV, k_el, nM, 
 
 
 @njit(cache=True)
-def evaluate(E_N_Td, y, model, f_out, J_out, mode):
+def evaluate(E_N_Td, y, model, f_out, J_out, mode, heat=None):
     """Rates, right-hand side and Jacobian of the species balances at one state.
 
-    The only kernel that calls :func:`_balances` (and through it the rate-law kernel;
-    compile time: every caller links it once). With the energy equation (``cond[8]``) and
-    ``mode >= JACOBIAN`` it evaluates the balances twice, at T + dT and at T, and fills the
-    temperature column by the difference (module docstring).
+    The only kernel that calls the rate-law kernel (compile time: every caller links it
+    once), through the rate-coefficient cache of the module docstring. With the energy
+    equation (``cond[8]``) the temperature column of the Jacobian is left at zero: the
+    caller fills it by :func:`temperature_column` (the step loop does the same inline, so
+    that no further kernel links this one).
 
     Parameters
     ----------
@@ -509,11 +508,17 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode):
         Output (``mode >= RHS``): dn/dt, m^-3 s^-1 (with the expansion term and the
         prescribed electron row when ``cond`` asks for them), and dT/dt, K/s.
     J_out : ndarray (len(y), len(y))
-        Output (``mode >= JACOBIAN``): d f / d y. The rate coefficients' dependence on the
+        Output (``mode >= JACOBIAN``): d f / d y, but the temperature column (above). The
+        rate coefficients' dependence on the
         field (time) is not part of J; the stepper takes it through d f / d t.
         ``JACOBIAN_SPLIT`` leaves out the rank-one part -u c^T of the expansion term.
     mode : int
         ``RATES`` (only ``work[3]`` = r), ``RHS``, ``JACOBIAN`` or ``JACOBIAN_SPLIT``.
+    heat : None or (ndarray (n_s,), ndarray (n_s,))
+        Scratch for the enthalpies and heat capacities of the energy equation
+        (:func:`heat_arrays`). None compiles a specialisation without the energy equation
+        (numba prunes the branches on a None argument), so that runs at a fixed gas
+        temperature do not pay its compile time; ``cond[8]`` is then ignored.
 
     Returns
     -------
@@ -527,33 +532,6 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode):
     action: e.g. Kee, Coltrin & Glarborg (2003), Chemically Reacting Flow, Wiley,
     sections 9.2-9.4.
     """
-    cond = model[4]
-    work = model[5]
-    n_s = model[2][0].shape[0]
-    passes = 2 if (cond[COND_ENERGY] != 0.0 and mode >= JACOBIAN) else 1
-    yp = work[W_Y_PERTURBED]
-    fp = work[W_F_PERTURBED]
-    dT = 0.0
-    res = (math.nan, math.nan)
-    for p in range(passes):
-        if p == passes - 1:
-            res = _balances(E_N_Td, y, model, f_out, J_out, mode)
-        else:
-            for i in range(y.shape[0]):
-                yp[i] = y[i]
-            dT = TEMPERATURE_STEP * max(y[n_s], 1.0)
-            yp[n_s] = y[n_s] + dT
-            dT = yp[n_s] - y[n_s]
-            _balances(E_N_Td, yp, model, fp, J_out, RHS)
-    if passes == 2:
-        for i in range(y.shape[0]):
-            J_out[i, n_s] = (fp[i] - f_out[i]) / dT
-    return res
-
-
-@njit(cache=True)
-def _balances(E_N_Td, y, model, f_out, J_out, mode):
-    """:func:`evaluate` at one state, without the temperature column of the Jacobian."""
     mech, kernel_args, linear, table, cond, work = model
     third_body = mech[3]
     eff = mech[4]
@@ -565,7 +543,9 @@ def _balances(E_N_Td, y, model, f_out, J_out, mode):
     nM_row = work[5]
     n_s = linear[0].shape[0]
     n = y.shape[0]
-    energy = int(cond[COND_ENERGY])
+    energy = 0
+    if heat is not None:     # None: compiled without the energy equation (pruned)
+        energy = int(cond[COND_ENERGY])
     for b in range(eff.shape[0]):
         s_sum = 0.0
         for s in range(n_s):
@@ -577,8 +557,9 @@ def _balances(E_N_Td, y, model, f_out, J_out, mode):
     mean_eV, drift = interpolate_table(table[0], table[1], table[2], table[3], table[4],
                                        E_N_Td, k_el)
     Tg = cond[0]
-    if energy != 0:
-        Tg = max(y[n_s], 1.0)
+    if heat is not None:
+        if energy != 0:
+            Tg = max(y[n_s], 1.0)
     _cached_rate_coefficients(kernel_args, work, Tg, E_N_Td, mean_eV, k_el, nM, k, dk)
     mult = mech[6]
     for j in range(k.shape[0]):
@@ -606,9 +587,9 @@ def _balances(E_N_Td, y, model, f_out, J_out, mode):
     heat_cap = 0.0
     N_heavy = 0.0
     P_e = 0.0
-    if energy != 0:
-        en = work[W_ENTHALPY]
-        cp = work[W_HEAT_CAPACITY]
+    if heat is not None and energy != 0:
+        en = heat[0]
+        cp = heat[1]
         h_RT(kernel_args[6], kernel_args[7], kernel_args[8], Tg, en)
         cp_R(kernel_args[6], kernel_args[7], Tg, cp)
         kT = K_B * Tg
@@ -663,10 +644,10 @@ def _balances(E_N_Td, y, model, f_out, J_out, mode):
         for i in range(n_s):
             w[i] = 0.0
         _jacobian_terms(y, mech, linear, k, dk, nM, J_out, w, split)
-        if energy != 0:
+        if heat is not None and energy != 0:
             # ENERGY EQUATION: the temperature row, exact (module docstring)
-            en = work[W_ENTHALPY]
-            cp = work[W_HEAT_CAPACITY]
+            en = heat[0]
+            cp = heat[1]
             nu = linear[0]
             Pm = linear[1]
             dP_heavy = 0.0
@@ -717,6 +698,29 @@ def _balances(E_N_Td, y, model, f_out, J_out, mode):
                         for m in range(n_s):
                             J_out[i, m] -= ui * c[m]
     return mean_eV, drift
+
+
+def heat_arrays(model):
+    """The ``heat`` argument of :func:`evaluate` for ``model``: None at a fixed gas
+    temperature, otherwise the enthalpy and heat-capacity scratch of ``work``."""
+    if model[4][COND_ENERGY] == 0.0:
+        return None
+    return (model[5][W_ENTHALPY], model[5][W_HEAT_CAPACITY])
+
+
+def temperature_column(E_N_Td, y, model, f0, J_out):
+    """Fill the temperature column of ``J_out`` by a forward difference (energy equation).
+
+    ``f0`` = f(y) from :func:`evaluate`; one more right-hand side at T + dT, dT =
+    ``TEMPERATURE_STEP`` T (module docstring). Plain Python over the compiled kernel, for
+    callers outside the step loop (which does the same inline).
+    """
+    n_s = model[2][0].shape[0]
+    yp = np.array(y, dtype=np.float64, copy=True)
+    yp[n_s] = y[n_s] + TEMPERATURE_STEP * max(y[n_s], 1.0)
+    fp = np.zeros_like(yp)
+    evaluate(E_N_Td, yp, model, fp, np.zeros((1, 1)), RHS, heat_arrays(model))
+    J_out[:, n_s] = (fp - f0) / (yp[n_s] - y[n_s])
 
 
 @njit(cache=True)

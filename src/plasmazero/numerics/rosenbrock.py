@@ -132,6 +132,160 @@ def standard_form():
 WOODBURY_TOLERANCE = 1e-8
 
 
+#: slots of the Woodbury scratch ``wb`` (float64 (6,)) shared by the stage kernels
+_WB_C11, _WB_C12, _WB_C21, _WB_C22, _WB_DET, _WB_SPARSE = range(6)
+WB_SIZE = 6
+
+
+@njit(cache=True)
+def rodas4_factor(h, J, model, lu, piv, sp, wb):
+    """Factor the stage matrix I/(gamma h) - J of one RODAS4 step (:func:`rodas4_step`).
+
+    Sparse LU with the Woodbury capacitance matrix of the rank-one parts in ``wb``, or the
+    dense LU (also the fallback when a sparse pivot is tiny). Returns 0 or the singular
+    pivot code of :func:`plasmazero.numerics.linalg.lu_factor`.
+    """
+    n = J.shape[0]
+    inv_gh = 1.0 / (GAMMA * h)
+    configured = sp[0][0] == 1
+    # rank-one parts of M = I/(gamma h) - J_split + U V^T: U = [-w, u], V = [1, c]
+    tb = configured and sp[0][1] == 1
+    ex = configured and model[4][COND_EXPANSION] != 0.0
+    u = model[5][7]
+    c = model[5][8]
+    w = model[5][9]
+    order, indptr, indices, diag, orow, ocol, val, wv, Z, stats = (
+        sp[1], sp[2], sp[3], sp[4], sp[5], sp[6], sp[7], sp[8], sp[9], sp[10])
+    sparse = configured
+    C11 = 1.0
+    C12 = 0.0
+    C21 = 0.0
+    C22 = 1.0
+    det = 1.0
+    info = 0
+    if sparse:
+        for p in range(val.shape[0]):
+            val[p] = -J[orow[p], ocol[p]]
+        for k in range(n):
+            val[diag[k]] += inv_gh
+        info = sparse_factor(indptr, indices, diag, val, wv)
+        if info == 0 and (tb or ex):
+            # Woodbury: Z = A^{-1} U, capacitance matrix I + V^T Z
+            if tb:
+                for i in range(n):
+                    Z[0, i] = -w[i]
+                sparse_solve(indptr, indices, diag, val, order, Z[0], wv)
+                for i in range(n):
+                    C11 += Z[0, i]
+            if ex:
+                for i in range(n):
+                    Z[1, i] = u[i]
+                sparse_solve(indptr, indices, diag, val, order, Z[1], wv)
+                for i in range(n):
+                    C22 += c[i] * Z[1, i]
+            if tb and ex:
+                for i in range(n):
+                    C12 += Z[1, i]
+                    C21 += c[i] * Z[0, i]
+            det = C11 * C22 - C12 * C21
+            # relative to its two terms: invariant under rescaling u -> u/a, c -> a c
+            if not (abs(det) > WOODBURY_TOLERANCE * (abs(C11 * C22) + abs(C12 * C21))):
+                info = n + 2
+        if info == 0:
+            stats[0] += 1
+        else:
+            sparse = False
+            stats[1] += 1
+    wb[_WB_C11] = C11
+    wb[_WB_C12] = C12
+    wb[_WB_C21] = C21
+    wb[_WB_C22] = C22
+    wb[_WB_DET] = det
+    wb[_WB_SPARSE] = 1.0 if sparse else 0.0
+    if not sparse:
+        for i in range(n):
+            for m in range(n):
+                lu[i, m] = -J[i, m]
+            if tb:
+                wi = w[i]
+                for m in range(n):
+                    lu[i, m] -= wi
+            if ex:
+                ui = u[i]
+                for m in range(n):
+                    lu[i, m] += ui * c[m]
+            lu[i, i] += inv_gh
+        info = lu_factor(lu, piv)
+    return info
+
+
+@njit(cache=True)
+def rodas4_stage_state(s, t, y, h, U, ystage):
+    """State ``ystage`` = y + sum_m A[s, m] U_m of stage ``s`` >= 1; returns its time, s."""
+    n = y.shape[0]
+    for i in range(n):
+        v = y[i]
+        for m in range(s):
+            v += A[s, m] * U[m, i]
+        ystage[i] = v
+    return t + ALPHA[s] * h
+
+
+@njit(cache=True)
+def rodas4_stage_solve(s, h, fstage, fdt, use_fdt, model, lu, piv, U, sp, wb):
+    """Stage vector U_s from f at the stage state (``fstage``): solve with the factors of
+    :func:`rodas4_factor` (Woodbury correction on the sparse path)."""
+    n = fstage.shape[0]
+    inv_h = 1.0 / h
+    for i in range(n):
+        v = fstage[i]
+        for m in range(s):
+            v += C[s, m] * inv_h * U[m, i]
+        if use_fdt:
+            v += h * D[s] * fdt[i]
+        U[s, i] = v
+    if wb[_WB_SPARSE] != 0.0:
+        configured = sp[0][0] == 1
+        tb = configured and sp[0][1] == 1
+        ex = configured and model[4][COND_EXPANSION] != 0.0
+        c = model[5][8]
+        order, indptr, indices, diag, val, wv, Z = sp[1], sp[2], sp[3], sp[4], sp[7], sp[8], sp[9]
+        us = U[s]
+        sparse_solve(indptr, indices, diag, val, order, us, wv)
+        if tb or ex:
+            C11 = wb[_WB_C11]
+            C12 = wb[_WB_C12]
+            C21 = wb[_WB_C21]
+            C22 = wb[_WB_C22]
+            det = wb[_WB_DET]
+            t1 = 0.0
+            t2 = 0.0
+            for i in range(n):
+                if tb:
+                    t1 += us[i]
+                if ex:
+                    t2 += c[i] * us[i]
+            s1 = (C22 * t1 - C12 * t2) / det
+            s2 = (C11 * t2 - C21 * t1) / det
+            for i in range(n):
+                if tb:
+                    us[i] -= Z[0, i] * s1
+                if ex:
+                    us[i] -= Z[1, i] * s2
+    else:
+        lu_solve(lu, piv, U[s])
+
+
+@njit(cache=True)
+def rodas4_finish(y, U, ynew):
+    """The new solution y + sum_s M_s U_s."""
+    for i in range(y.shape[0]):
+        v = y[i]
+        for s in range(N_STAGES):
+            v += M[s] * U[s, i]
+        ynew[i] = v
+
+
 @njit(cache=True)
 def rodas4_step(t, y, h, f0, J, fdt, use_fdt, model, lu, piv, U, ystage, fstage, ynew, sp):
     """One RODAS4 step: stage vectors ``U`` (6, n) and the new solution ``ynew``.
@@ -170,123 +324,30 @@ def rodas4_step(t, y, h, f0, J, fdt, use_fdt, model, lu, piv, U, ystage, fstage,
     int
         0 on success, otherwise the singular-pivot code of
         :func:`plasmazero.numerics.linalg.lu_factor` (nothing else is computed then).
-        Stage 6's vector ``U[5]`` is the error estimate.
+        Stage 6's vector ``U[5]`` is the error estimate. The step loop of
+    :mod:`plasmazero.numerics.integrate` runs the same stages through
+    :func:`rodas4_factor`, :func:`rodas4_stage_state`, :func:`rodas4_stage_solve` and
+    :func:`rodas4_finish` with its own call of the right-hand side, so that this kernel
+    (which links the right-hand side again) is not compiled there.
 
     References
     ----------
     Hairer & Wanner (1996), Solving ODEs II, section IV.7, eq. (7.25) and the RODAS
     method.
     """
-    n = y.shape[0]
-    inv_gh = 1.0 / (GAMMA * h)
-    configured = sp[0][0] == 1
-    # rank-one parts of M = I/(gamma h) - J_split + U V^T: U = [-w, u], V = [1, c]
-    tb = configured and sp[0][1] == 1
-    ex = configured and model[4][COND_EXPANSION] != 0.0
-    u = model[5][7]
-    c = model[5][8]
-    w = model[5][9]
-    order, indptr, indices, diag, orow, ocol, val, wv, Z, stats = (
-        sp[1], sp[2], sp[3], sp[4], sp[5], sp[6], sp[7], sp[8], sp[9], sp[10])
-    sparse = configured
-    C11 = 1.0
-    C12 = 0.0
-    C21 = 0.0
-    C22 = 1.0
-    det = 1.0
-    if sparse:
-        for p in range(val.shape[0]):
-            val[p] = -J[orow[p], ocol[p]]
-        for k in range(n):
-            val[diag[k]] += inv_gh
-        info = sparse_factor(indptr, indices, diag, val, wv)
-        if info == 0 and (tb or ex):
-            # Woodbury: Z = A^{-1} U, capacitance matrix I + V^T Z
-            if tb:
-                for i in range(n):
-                    Z[0, i] = -w[i]
-                sparse_solve(indptr, indices, diag, val, order, Z[0], wv)
-                for i in range(n):
-                    C11 += Z[0, i]
-            if ex:
-                for i in range(n):
-                    Z[1, i] = u[i]
-                sparse_solve(indptr, indices, diag, val, order, Z[1], wv)
-                for i in range(n):
-                    C22 += c[i] * Z[1, i]
-            if tb and ex:
-                for i in range(n):
-                    C12 += Z[1, i]
-                    C21 += c[i] * Z[0, i]
-            det = C11 * C22 - C12 * C21
-            # relative to its two terms: invariant under rescaling u -> u/a, c -> a c
-            if not (abs(det) > WOODBURY_TOLERANCE * (abs(C11 * C22) + abs(C12 * C21))):
-                info = n + 2
-        if info == 0:
-            stats[0] += 1
-        else:
-            sparse = False
-            stats[1] += 1
-    if not sparse:
-        for i in range(n):
-            for m in range(n):
-                lu[i, m] = -J[i, m]
-            if tb:
-                wi = w[i]
-                for m in range(n):
-                    lu[i, m] -= wi
-            if ex:
-                ui = u[i]
-                for m in range(n):
-                    lu[i, m] += ui * c[m]
-            lu[i, i] += inv_gh
-        info = lu_factor(lu, piv)
-        if info != 0:
-            return info
-    inv_h = 1.0 / h
+    wb = np.zeros(WB_SIZE)
+    info = rodas4_factor(h, J, model, lu, piv, sp, wb)
+    if info != 0:
+        return info
     for s in range(N_STAGES):
         if s == 0:
-            for i in range(n):
+            for i in range(y.shape[0]):
                 fstage[i] = f0[i]
         else:
-            for i in range(n):
-                v = y[i]
-                for m in range(s):
-                    v += A[s, m] * U[m, i]
-                ystage[i] = v
-            evaluate(field_at(model[4], t + ALPHA[s] * h), ystage, model, fstage, J, RHS)
-        for i in range(n):
-            v = fstage[i]
-            for m in range(s):
-                v += C[s, m] * inv_h * U[m, i]
-            if use_fdt:
-                v += h * D[s] * fdt[i]
-            U[s, i] = v
-        if sparse:
-            us = U[s]
-            sparse_solve(indptr, indices, diag, val, order, us, wv)
-            if tb or ex:
-                t1 = 0.0
-                t2 = 0.0
-                for i in range(n):
-                    if tb:
-                        t1 += us[i]
-                    if ex:
-                        t2 += c[i] * us[i]
-                s1 = (C22 * t1 - C12 * t2) / det
-                s2 = (C11 * t2 - C21 * t1) / det
-                for i in range(n):
-                    if tb:
-                        us[i] -= Z[0, i] * s1
-                    if ex:
-                        us[i] -= Z[1, i] * s2
-        else:
-            lu_solve(lu, piv, U[s])
-    for i in range(n):
-        v = y[i]
-        for s in range(N_STAGES):
-            v += M[s] * U[s, i]
-        ynew[i] = v
+            ts = rodas4_stage_state(s, t, y, h, U, ystage)
+            evaluate(field_at(model[4], ts), ystage, model, fstage, J, RHS)
+        rodas4_stage_solve(s, h, fstage, fdt, use_fdt, model, lu, piv, U, sp, wb)
+    rodas4_finish(y, U, ynew)
     return 0
 
 
