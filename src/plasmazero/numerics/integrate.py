@@ -245,6 +245,9 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, heat, rtol, atol,
     piv = np.empty(n, dtype=np.int64)
     U = np.empty((6, n))
     wb = np.zeros(WB_SIZE)
+    wu = work[7]
+    wc = work[8]
+    ww = work[9]
     h1 = np.empty(n)
     h2 = np.empty(n)
     yd = np.empty(n)
@@ -349,8 +352,9 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, heat, rtol, atol,
         use_fdt = cond[3] != 0.0
         if use_fdt:
             dE = FIELD_DERIVATIVE_STEP * max(E_now, 1.0)
-            evaluate(E_now + dE, y, model, ftmp, J, RHS, heat)
-            evaluate(E_now + 2.0 * dE, y, model, fstage, J, RHS, heat)
+            for q in range(2):      # one call site (each site costs compile time)
+                fq = ftmp if q == 0 else fstage
+                evaluate(E_now + (q + 1.0) * dE, y, model, fq, J, RHS, heat)
             ist[_I_RHS] += 2
             fac = cond[3] / (2.0 * dE)
             for i in range(n):
@@ -405,7 +409,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, heat, rtol, atol,
             ist[_I_STEPS] += 1
             # one RODAS4 step (rosenbrock.rodas4_step, its stages written out here so that
             # the right-hand side is linked into this kernel only)
-            info = rodas4_factor(h, J, model, lu, piv, sp, wb)
+            info = rodas4_factor(h, J, expand, wu, wc, ww, lu, piv, sp, wb)
             if info == 0:
                 for s_ in range(N_STAGES):
                     if s_ == 0:
@@ -414,7 +418,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, heat, rtol, atol,
                     else:
                         ts = rodas4_stage_state(s_, t, y, h, U, ystage)
                         evaluate(field_at(cond, ts), ystage, model, fstage, J, RHS, heat)
-                    rodas4_stage_solve(s_, h, fstage, fdt, use_fdt, model, lu, piv, U, sp, wb)
+                    rodas4_stage_solve(s_, h, fstage, fdt, use_fdt, expand, wc, lu, piv, U, sp, wb)
                 rodas4_finish(y, U, ynew)
             ist[_I_LU] += 1
             cause = 0

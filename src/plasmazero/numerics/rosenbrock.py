@@ -138,22 +138,23 @@ WB_SIZE = 6
 
 
 @njit(cache=True)
-def rodas4_factor(h, J, model, lu, piv, sp, wb):
+def rodas4_factor(h, J, expand, u, c, w, lu, piv, sp, wb):
     """Factor the stage matrix I/(gamma h) - J of one RODAS4 step (:func:`rodas4_step`).
 
     Sparse LU with the Woodbury capacitance matrix of the rank-one parts in ``wb``, or the
-    dense LU (also the fallback when a sparse pivot is tiny). Returns 0 or the singular
-    pivot code of :func:`plasmazero.numerics.linalg.lu_factor`.
+    dense LU (also the fallback when a sparse pivot is tiny). ``expand``: the expansion
+    term is on; ``u``, ``c``, ``w``: the rank-one vectors of the split Jacobian
+    (``model[5][7:10]``, kinetics docstring). The kernel takes these arrays rather than the
+    whole model tuple: a large tuple argument costs compile time in every kernel that
+    takes it. Returns 0 or the singular pivot code of
+    :func:`plasmazero.numerics.linalg.lu_factor`.
     """
     n = J.shape[0]
     inv_gh = 1.0 / (GAMMA * h)
     configured = sp[0][0] == 1
     # rank-one parts of M = I/(gamma h) - J_split + U V^T: U = [-w, u], V = [1, c]
     tb = configured and sp[0][1] == 1
-    ex = configured and model[4][COND_EXPANSION] != 0.0
-    u = model[5][7]
-    c = model[5][8]
-    w = model[5][9]
+    ex = configured and expand
     order, indptr, indices, diag, orow, ocol, val, wv, Z, stats = (
         sp[1], sp[2], sp[3], sp[4], sp[5], sp[6], sp[7], sp[8], sp[9], sp[10])
     sparse = configured
@@ -232,9 +233,10 @@ def rodas4_stage_state(s, t, y, h, U, ystage):
 
 
 @njit(cache=True)
-def rodas4_stage_solve(s, h, fstage, fdt, use_fdt, model, lu, piv, U, sp, wb):
+def rodas4_stage_solve(s, h, fstage, fdt, use_fdt, expand, c, lu, piv, U, sp, wb):
     """Stage vector U_s from f at the stage state (``fstage``): solve with the factors of
-    :func:`rodas4_factor` (Woodbury correction on the sparse path)."""
+    :func:`rodas4_factor` (Woodbury correction on the sparse path; ``expand`` and ``c``
+    as there)."""
     n = fstage.shape[0]
     inv_h = 1.0 / h
     for i in range(n):
@@ -247,8 +249,7 @@ def rodas4_stage_solve(s, h, fstage, fdt, use_fdt, model, lu, piv, U, sp, wb):
     if wb[_WB_SPARSE] != 0.0:
         configured = sp[0][0] == 1
         tb = configured and sp[0][1] == 1
-        ex = configured and model[4][COND_EXPANSION] != 0.0
-        c = model[5][8]
+        ex = configured and expand
         order, indptr, indices, diag, val, wv, Z = sp[1], sp[2], sp[3], sp[4], sp[7], sp[8], sp[9]
         us = U[s]
         sparse_solve(indptr, indices, diag, val, order, us, wv)
@@ -336,7 +337,8 @@ def rodas4_step(t, y, h, f0, J, fdt, use_fdt, model, lu, piv, U, ystage, fstage,
     method.
     """
     wb = np.zeros(WB_SIZE)
-    info = rodas4_factor(h, J, model, lu, piv, sp, wb)
+    expand = model[4][COND_EXPANSION] != 0.0
+    info = rodas4_factor(h, J, expand, model[5][7], model[5][8], model[5][9], lu, piv, sp, wb)
     if info != 0:
         return info
     for s in range(N_STAGES):
@@ -346,7 +348,7 @@ def rodas4_step(t, y, h, f0, J, fdt, use_fdt, model, lu, piv, U, ystage, fstage,
         else:
             ts = rodas4_stage_state(s, t, y, h, U, ystage)
             evaluate(field_at(model[4], ts), ystage, model, fstage, J, RHS)
-        rodas4_stage_solve(s, h, fstage, fdt, use_fdt, model, lu, piv, U, sp, wb)
+        rodas4_stage_solve(s, h, fstage, fdt, use_fdt, expand, model[5][8], lu, piv, U, sp, wb)
     rodas4_finish(y, U, ynew)
     return 0
 
