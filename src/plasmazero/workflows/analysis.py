@@ -159,6 +159,11 @@ def summary(result):
         "energy_input_J_m3": u,
         "energy_split_fraction": {k: (v / total_split if total_split else 0.0)
                                   for k, v in result.energy_split_J_m3.items()},
+        # where the energy ended: stored as chemical enthalpy of the products (at the inlet
+        # temperature) or released as heat (first law; the heat leaves through the walls
+        # or warms the gas, which the energy equation follows)
+        "energy_stored_fraction": (stored / u if u > 0 and bool(np.all(known)) else math.nan),
+        "energy_to_heat_fraction": (1.0 - stored / u if u > 0 and bool(np.all(known)) else math.nan),
         "plasma": plasma,
         "expansion_factor": float(result.expansion_factor[end]),
         "element_balance_error": max(errors) if errors else 0.0,
