@@ -108,3 +108,11 @@ def test_errors_exit_two_with_one_line_each_and_no_traceback(tmp_path, run):
 def test_missing_file_exits_two(tmp_path, run):
     code, out, err = run(tmp_path / "none.yaml")
     assert code == 2 and "file not found" in err and "Traceback" not in err
+
+
+def test_a_shipped_mechanism_by_name(run):
+    code, out, _ = run("argon", "--quiet")
+    assert code == 0 and out.strip().endswith("valid")
+    code, out, err = run("no_such_mechanism")
+    assert code == 2 and out == ""
+    assert len(err.strip().splitlines()) == 1 and "no shipped mechanism" in err and "argon" in err

@@ -25,7 +25,8 @@ SAMPLE_N_M_M3 = 2.5e25   # about 1 bar at 300 K
 
 def add_arguments(parser):
     """Options of ``plasmazero check``."""
-    parser.add_argument("mechanism", metavar="MECHANISM.yaml", help="mechanism file to check")
+    parser.add_argument("mechanism", metavar="MECHANISM.yaml",
+                        help="mechanism file to check, or the name of a shipped mechanism (co2, ...)")
     parser.add_argument("--strict", action="store_true",
                         help="exit with status 1 when there are warnings")
     parser.add_argument("--quiet", action="store_true",
@@ -111,7 +112,14 @@ def run(args):
     def check_expression(text, file, entry, line):
         compile_expression(text, file=file, entry=entry, line=line)
 
-    loaded = load_mechanism(args.mechanism, check_expression=check_expression)
+    from pathlib import Path
+
+    from plasmazero.workflows.dbd import resolve_mechanism
+
+    path = args.mechanism
+    if not Path(path).exists():          # a shipped name such as "co2"
+        path = resolve_mechanism(path)
+    loaded = load_mechanism(path, check_expression=check_expression)
     mech = compile_mechanism(loaded)
     warnings = mechanism_warnings(loaded) + rate_warnings(mech)
     if not args.quiet:
