@@ -199,3 +199,75 @@ def interpolate_table(E_N_grid, ln_E_N_grid, k_table, mean_table, drift_table, E
         k_out[p] = w0 * k_table[lo, p] + w * k_table[hi, p]
     return (w0 * mean_table[lo] + w * mean_table[hi],
             w0 * drift_table[lo] + w * drift_table[hi])
+
+
+def mean_energy_problems(table):
+    """Why ``table`` cannot be inverted in mean energy (local mean energy approximation):
+    a list of one-line problems, empty when the mean energy rises strictly with E/N."""
+    if table is None:
+        return ["the local mean energy approximation needs an electron table"]
+    m = np.asarray(table.mean_energy_eV, dtype=float)
+    if m.size < 2 or not np.all(np.diff(m) > 0.0):
+        return ["the mean electron energy of the table does not rise strictly with E/N, "
+                "so it cannot parametrise the coefficients (local mean energy approximation)"]
+    return []
+
+
+@njit(cache=True)
+def field_for_mean_energy(E_N_grid, ln_E_N_grid, mean_table, drift_table, mean_eV):
+    """Effective reduced field at which the table's mean energy equals ``mean_eV``.
+
+    The inverse of :func:`interpolate_table`'s mean energy on the same interpolation rule
+    (the mean energy is linear in the interpolation weight on each interval), so that
+    ``interpolate_table`` at the returned field gives back ``mean_eV`` and the rate
+    coefficients that belong to it: the local mean energy approximation (coefficients as
+    functions of the mean energy; Hagelaar & Pitchford 2005, section 3). The table's mean
+    energy must rise strictly with E/N (:func:`mean_energy_problems`). Flat outside the
+    table.
+
+    Returns
+    -------
+    (float, float)
+        Effective field (Td) and reduced mobility mu N = w / (E/N) there (m s^-1 Td^-1;
+        at a zero-field end, the limit from the first positive row).
+    """
+    n = E_N_grid.shape[0]
+    if mean_eV <= mean_table[0]:
+        E = E_N_grid[0]
+    elif mean_eV >= mean_table[n - 1]:
+        E = E_N_grid[n - 1]
+    else:
+        lo = 0
+        hi = n - 1
+        while hi - lo > 1:
+            mid = (lo + hi) // 2
+            if mean_table[mid] <= mean_eV:
+                lo = mid
+            else:
+                hi = mid
+        w = (mean_eV - mean_table[lo]) / (mean_table[hi] - mean_table[lo])
+        if E_N_grid[lo] <= 0.0:
+            E = w * E_N_grid[hi]
+        else:
+            E = math.exp(ln_E_N_grid[lo] + w * (ln_E_N_grid[hi] - ln_E_N_grid[lo]))
+    if E > 0.0:
+        # drift at E by the interpolation rule, over E
+        if E >= E_N_grid[n - 1]:
+            return E, drift_table[n - 1] / E
+        lo = 0
+        hi = n - 1
+        while hi - lo > 1:
+            mid = (lo + hi) // 2
+            if E_N_grid[mid] <= E:
+                lo = mid
+            else:
+                hi = mid
+        if E_N_grid[lo] <= 0.0:
+            w = E / E_N_grid[hi]
+        elif E <= E_N_grid[0]:
+            return E, drift_table[0] / E
+        else:
+            w = (math.log(E) - ln_E_N_grid[lo]) / (ln_E_N_grid[hi] - ln_E_N_grid[lo])
+        return E, ((1.0 - w) * drift_table[lo] + w * drift_table[hi]) / E
+    k = 1 if n > 1 else 0
+    return E, (drift_table[k] / E_N_grid[k] if E_N_grid[k] > 0.0 else 0.0)

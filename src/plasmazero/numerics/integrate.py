@@ -123,10 +123,11 @@ from numba import njit
 from ..physics import ratelaws
 
 from .controller import error_norm, next_step_accepted, next_step_rejected
-from .electrons import ElectronTable, interpolate_table, table_arrays
+from .electrons import (ElectronTable, field_for_mean_energy, interpolate_table,
+                        mean_energy_problems, table_arrays)
 from .field import as_density_profile, as_field, density_segments, segments
 from .kinetics import (COND_ELECTRON, COND_ELECTRON_SLOPE, COND_ENERGY, COND_EXPANSION,
-                       COND_HEAT_LOSS, COND_PRESCRIBED, COND_SIZE, COND_T_WALL,
+                       COND_HEAT_LOSS, COND_LMEA, COND_PRESCRIBED, COND_SIZE, COND_T_WALL,
                        ENERGY_ISOBARIC, ENERGY_ISOCHORIC, TEMPERATURE_STEP, JACOBIAN, JACOBIAN_SPLIT, RATES, RHS, charge_imbalance,
                        clear_rate_cache, evaluate, field_at, heat_arrays, jacobian_pattern, linear_terms,
                        net_stoichiometry, rate_cache)
@@ -262,6 +263,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, heat, rtol, atol,
     e_idx = int(cond[COND_ELECTRON])
     expand = cond[COND_EXPANSION] != 0.0
     energy = heat is not None and cond[COND_ENERGY] != 0.0
+    n_species = linear[0].shape[0]
 
     t = fst[_F_T]
     h = fst[_F_H]
@@ -323,19 +325,20 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, heat, rtol, atol,
         evaluate(E_now, y, model, f0, J, jac_mode, heat)
         ist[_I_JAC] += 1
         ist[_I_RHS] += 1
-        if heat is not None and energy:
-            # temperature column of the Jacobian by a forward difference (kinetics
-            # docstring; written here so that no other kernel links evaluate)
-            n_s = n - 1
-            for i in range(n):
-                yd[i] = y[i]
-            dT = TEMPERATURE_STEP * max(y[n_s], 1.0)
-            yd[n_s] = y[n_s] + dT
-            dT = yd[n_s] - y[n_s]
-            evaluate(E_now, yd, model, ftmp, J, RHS, heat)
-            ist[_I_RHS] += 1
-            for i in range(n):
-                J[i, n_s] = (ftmp[i] - f0[i]) / dT
+        if heat is not None:
+            # columns of the extra entries (temperature, mean electron energy) by forward
+            # differences (kinetics docstring; written here so that no other kernel links
+            # evaluate)
+            for col in range(n_species, n):
+                for i in range(n):
+                    yd[i] = y[i]
+                dx = TEMPERATURE_STEP * max(y[col], 1.0)
+                yd[col] = y[col] + dx
+                dx = yd[col] - y[col]
+                evaluate(E_now, yd, model, ftmp, J, RHS, heat)
+                ist[_I_RHS] += 1
+                for i in range(n):
+                    J[i, col] = (ftmp[i] - f0[i]) / dx
         if not (_all_finite(f0) and _all_finite(J)):
             status = NON_FINITE_STATE
             ist[_I_CAUSE] = CAUSE_NON_FINITE
@@ -696,6 +699,12 @@ def rate_multiplier_array(mech, rate_multipliers):
     return mult
 
 
+#: ``electron_energy`` models: local field (coefficients at E/N(t)) or local mean energy
+#: (an equation for the mean electron energy; kinetics docstring)
+ELECTRON_ENERGY_MODELS = ("local_field", "local_mean_energy")
+#: absolute tolerance of the mean electron energy (LMEA), eV (a choice of this code)
+ATOL_MEAN_ENERGY_EV = 1e-6
+
 #: ``energy_equation`` names and their ``cond`` codes
 ENERGY_EQUATIONS = {None: 0, "isobaric": ENERGY_ISOBARIC, "isochoric": ENERGY_ISOCHORIC}
 
@@ -703,7 +712,7 @@ ENERGY_EQUATIONS = {None: 0, "isobaric": ENERGY_ISOBARIC, "isochoric": ENERGY_IS
 def build_model(mech, T_gas_K, *, electron_table=None, loss_frequency_s=None,
                 loss_products=None, source_m3_s=None, E_N_Td=0.0, rate_multipliers=None,
                 constant_total_density=False, electron_species=None, energy_equation=None,
-                heat_loss_W_m3_K=0.0, wall_temperature_K=None):
+                heat_loss_W_m3_K=0.0, wall_temperature_K=None, electron_energy="local_field"):
     """The ``model`` tuple of :mod:`plasmazero.numerics.kinetics` for a mechanism.
 
     Used by :func:`integrate`; also lets callers evaluate the right-hand side and the
@@ -711,10 +720,13 @@ def build_model(mech, T_gas_K, *, electron_table=None, loss_frequency_s=None,
     is the constant ``E_N_Td`` (Td) until :func:`integrate` sets its segments; the
     electron density is free (``cond[6] = 0``) until a prescribed segment sets it.
     ``rate_multipliers``, ``constant_total_density``, ``energy_equation``,
-    ``heat_loss_W_m3_K`` and ``wall_temperature_K`` as for :func:`integrate` (with an
-    energy equation the state passed to ``kinetics.evaluate`` ends with the temperature,
-    and isobaric implies ``constant_total_density``).
+    ``heat_loss_W_m3_K``, ``wall_temperature_K`` and ``electron_energy`` as for
+    :func:`integrate` (with an energy equation the state passed to ``kinetics.evaluate``
+    continues with the temperature, then with the local mean energy approximation the mean
+    electron energy; isobaric implies ``constant_total_density``).
     """
+    if electron_energy not in ELECTRON_ENERGY_MODELS:
+        raise ValueError(f"electron_energy must be one of {', '.join(ELECTRON_ENERGY_MODELS)}")
     if energy_equation not in ENERGY_EQUATIONS:
         raise ValueError("energy_equation must be None, 'isobaric' or 'isochoric'")
     heat_loss_W_m3_K = float(heat_loss_W_m3_K)
@@ -761,6 +773,11 @@ def build_model(mech, T_gas_K, *, electron_table=None, loss_frequency_s=None,
     if not (T_wall > 0.0 and math.isfinite(T_wall)):
         raise ValueError("wall_temperature_K must be a positive temperature")
     cond[COND_T_WALL] = T_wall
+    if electron_energy == "local_mean_energy":
+        problems = mean_energy_problems(table)
+        if problems:
+            raise ValueError(problems[0])
+        cond[COND_LMEA] = 1.0
     kernel_args = tuple(mech.kernel_args)
     work = (np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_p),
             np.zeros(n_tb), np.zeros(6), np.zeros(n), np.zeros(n), np.zeros(n)) + \
@@ -799,10 +816,11 @@ def linear_solver_arrays(model, linear_solver="auto"):
     if linear_solver not in ("auto", "dense", "sparse"):
         raise ValueError("linear_solver must be 'auto', 'dense' or 'sparse'")
     n = model[2][0].shape[0]
-    energy = model[4][COND_ENERGY] != 0.0
+    energy = model[4][COND_ENERGY] != 0.0 or model[4][COND_LMEA] != 0.0
     if energy and linear_solver == "sparse":
-        raise ValueError("the energy equation uses the dense linear solver (its row and "
-                         "column are dense): give linear_solver='dense' or 'auto'")
+        raise ValueError("the energy equation and the local mean energy approximation use "
+                         "the dense linear solver (their rows and columns are dense): give "
+                         "linear_solver='dense' or 'auto'")
     ei = np.zeros(0, dtype=np.int64)
     ef = np.zeros(0)
     dense = (np.zeros(3, dtype=np.int64), ei, ei, ei, ei, ei, ei, ef, ef, np.zeros((2, 0)),
@@ -828,7 +846,7 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
               electron_species=None, raise_on_failure=True, rate_multipliers=None,
               constant_total_density=False, electron_density_profile=None,
               linear_solver="auto", energy_equation=None, heat_loss_W_m3_K=0.0,
-              wall_temperature_K=None):
+              wall_temperature_K=None, electron_energy="local_field", mean_energy0_eV=None):
     """Integrate the species balances of a compiled mechanism over ``t_span_s``.
 
     Parameters
@@ -896,7 +914,8 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
         times (module docstring).
     linear_solver : {"auto", "dense", "sparse"}
         Linear algebra of the stepper (:func:`linear_solver_arrays`); the result's
-        ``linear_solver`` says which was used ("auto" is dense with an energy equation).
+        ``linear_solver`` says which was used ("auto" is dense with an energy equation or
+        the local mean energy approximation).
     energy_equation : {None, "isobaric", "isochoric"}
         None: fixed gas temperature. Otherwise the gas temperature is integrated with the
         species from the enthalpy balance of :mod:`plasmazero.numerics.kinetics` (electron
@@ -909,6 +928,19 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
         adiabatic).
     wall_temperature_K : float or None
         T_wall, K (default: the initial ``T_gas_K``).
+    electron_energy : {"local_field", "local_mean_energy"}
+        "local_field" (default): the electron coefficients follow E/N(t) through the table.
+        "local_mean_energy": the mean electron energy is one more entry of the state,
+        d<eps>/dt = N mu N ((E/N)^2 - (E/N)_eff^2), driven by the power the field gives
+        the electrons (e mu E^2 per electron, mu at the current mean energy) against the
+        losses of the steady state with the same mean energy; the coefficients are those of
+        the table at the effective field (E/N)_eff whose mean energy is <eps> (Hagelaar &
+        Pitchford 2005, section 3; kinetics docstring). The table's mean energy must rise
+        strictly with E/N. The energy carried by electrons made or lost (ionization,
+        attachment) is not booked separately.
+    mean_energy0_eV : float or None
+        Initial mean electron energy with "local_mean_energy", eV (default: the table's
+        value at the initial field).
 
     Returns
     -------
@@ -999,13 +1031,29 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
                         rate_multipliers=rate_multipliers,
                         constant_total_density=constant_total_density,
                         electron_species=electron_species, energy_equation=energy_equation,
-                        heat_loss_W_m3_K=heat_loss_W_m3_K, wall_temperature_K=wall_temperature_K)
-    n_y = n + 1 if energy else n
+                        heat_loss_W_m3_K=heat_loss_W_m3_K, wall_temperature_K=wall_temperature_K,
+                        electron_energy=electron_energy)
+    lmea = electron_energy == "local_mean_energy"
+    n_y = n + int(energy) + int(lmea)
     if energy:
-        # the state ends with the gas temperature: tolerances, flags and clipping cover it
+        # the state continues with the gas temperature: tolerances, flags and clipping cover it
         y = np.r_[y, T_gas_K]
         rtol_v = np.r_[rtol_v, rtol_v.min()]
         atol_v = np.r_[atol_v, ATOL_TEMPERATURE_K]
+        heavy = np.r_[heavy, False]
+        charge = np.r_[charge, 0.0]
+    i_eps = n_y - 1 if lmea else -1
+    if lmea:
+        # then with the mean electron energy
+        if mean_energy0_eV is None:
+            mean0 = interpolate_table(*model[3], float(seg_E0[0]), np.zeros(n_p))[0]
+        else:
+            mean0 = float(mean_energy0_eV)
+        if not (mean0 > 0.0 and math.isfinite(mean0)):
+            raise ValueError("mean_energy0_eV must be a positive energy")
+        y = np.r_[y, mean0]
+        rtol_v = np.r_[rtol_v, rtol_v.min()]
+        atol_v = np.r_[atol_v, ATOL_MEAN_ENERGY_EV]
         heavy = np.r_[heavy, False]
         charge = np.r_[charge, 0.0]
     cond = model[4]
@@ -1086,6 +1134,8 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
             table = _check_table(rebuild_table(x), mech)
             if table is None:
                 raise ValueError("rebuild_table returned None")
+            if lmea and mean_energy_problems(table):
+                raise ValueError("rebuild_table: " + mean_energy_problems(table)[0])
             n_rebuilds += 1
             rebuild_times.append(float(fst[_F_T]))
             model = model[:3] + (table_arrays(table, n_p),) + model[4:]
@@ -1121,11 +1171,20 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
                    f"({counters.n_steps} steps, {counters.n_rejected} rejected)")
     yk = out_y[:m, :n]
     T_out = out_y[:m, n].copy() if energy else np.full(m, T_gas_K)
+    mean_out = out_cond[:m, 1].copy()
+    drift_out = out_cond[:m, 2].copy()
+    E_eff_out = out_cond[:m, 0].copy()
+    if lmea:
+        tab = model[3]
+        mean_out = out_y[:m, i_eps].copy()
+        for r in range(m):
+            E_eff_out[r], muN = field_for_mean_energy(tab[0], tab[1], tab[3], tab[4], mean_out[r])
+            drift_out[r] = muN * E_eff_out[r]
     result = KineticsResult(
         species=species, reactions=tuple(mech.reactions), times_s=out_t[:m].copy(),
         densities_m3=yk.copy(), T_gas_K=T_out, E_N_Td=out_cond[:m, 0].copy(),
-        mean_energy_eV=out_cond[:m, 1].copy(),
-        electron_drift_velocity_m_s=out_cond[:m, 2].copy(),
+        mean_energy_eV=mean_out, electron_drift_velocity_m_s=drift_out,
+        effective_E_N_Td=E_eff_out, electron_energy=electron_energy,
         electron_density_m3=(yk[:, e_idx].copy() if e_idx >= 0 else np.zeros(m)),
         integrated_rates_m3=out_R[:m].copy(), integrated_linear_m3=out_L[:m, :n].copy(),
         expansion_factor=(_expansion_factor(mech, model[0], y_start, yk, out_ext[:m, 0], model[2])

@@ -134,11 +134,31 @@ Chemically Reacting Flow, Wiley, chapter 9 (constant-pressure and constant-volum
 reactors); the electron power as the only external source: common practice in global
 discharge models, no single source.
 
+Local mean energy approximation (``cond[11]`` = 1)
+-------------------------------------------------
+Instead of following the local field, the mean electron energy <eps> (eV) becomes the
+last entry of the state. The coefficients are those of the table at the effective field
+(E/N)_eff whose steady mean energy is <eps> (the inverse of the table's mean energy,
+:func:`plasmazero.numerics.electrons.field_for_mean_energy`), and::
+
+    d<eps>/dt = N mu N [(E/N)^2 - (E/N)_eff^2]        (eV/s per electron, E/N in V m^2)
+
+the power e mu E^2 the field gives an electron (mu N = w / (E/N) at <eps>) minus the
+losses e w_eff E_eff of the steady state that has the same mean energy. At a constant
+field <eps> relaxes to the table value; for a Maxwell-model gas this is the exact energy
+moment equation. The electron power of the energy equation is then e n_e mu E^2. The
+energy of electrons made or lost (ionization, attachment) is not booked separately (the
+steady-state losses at (E/N)_eff include their share). Coefficients as functions of the
+mean energy: Hagelaar & Pitchford (2005), Plasma Sources Sci. Technol. 14, 722, section 3.
+
 Jacobian: the temperature row is exact (differentiating the line above, with the
 species Jacobian of the chemistry); the temperature column (dk/dT of every rate law,
 through the thermo of the reverse rows) is a forward difference with step 1e-7 T,
 computed by one extra right-hand-side evaluation per Jacobian. The energy equation uses
-the dense Jacobian (``JACOBIAN``): its row and column are dense.
+the dense Jacobian (``JACOBIAN``): its row and column are dense. The same holds for
+the mean-energy entry of the local mean energy approximation (row exact, column by a
+forward difference). Both extra entries are compiled only when used: :func:`evaluate`
+takes them through its ``heat`` argument, and None prunes their code.
 """
 
 from __future__ import annotations
@@ -151,7 +171,7 @@ from numba import njit
 from ..physics.ratelaws import rate_coefficients
 from ..physics.thermo import cp_R, h_RT
 from ..physics.constants import BOLTZMANN_J_K as K_B, ELEMENTARY_CHARGE_C as E_CHARGE
-from .electrons import interpolate_table
+from .electrons import field_for_mean_energy, interpolate_table
 
 
 def net_stoichiometry(reactant_index, product_index, product_coeff):
@@ -381,7 +401,8 @@ COND_ELECTRON_SLOPE = 7
 COND_ENERGY = 8
 COND_HEAT_LOSS = 9
 COND_T_WALL = 10
-COND_SIZE = 11
+COND_LMEA = 11
+COND_SIZE = 12
 #: values of ``cond[COND_ENERGY]``
 ENERGY_FIXED = 0
 ENERGY_ISOBARIC = 1
@@ -554,13 +575,22 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode, heat=None):
     for j in range(third_body.shape[0]):
         b = third_body[j]
         nM[j] = nM_row[b] if b >= 0 else 0.0
+    # LOCAL MEAN ENERGY: the coefficients at the field whose steady mean energy is the
+    # state's mean energy (module docstring); otherwise at the local field
+    E_tab = E_N_Td
+    i_eps = -1
+    muN = 0.0
+    if heat is not None:
+        if cond[COND_LMEA] != 0.0:
+            i_eps = n_s + (1 if energy != 0 else 0)
+            E_tab, muN = field_for_mean_energy(table[0], table[1], table[3], table[4], y[i_eps])
     mean_eV, drift = interpolate_table(table[0], table[1], table[2], table[3], table[4],
-                                       E_N_Td, k_el)
+                                       E_tab, k_el)
     Tg = cond[0]
     if heat is not None:
         if energy != 0:
             Tg = max(y[n_s], 1.0)
-    _cached_rate_coefficients(kernel_args, work, Tg, E_N_Td, mean_eV, k_el, nM, k, dk)
+    _cached_rate_coefficients(kernel_args, work, Tg, E_tab, mean_eV, k_el, nM, k, dk)
     mult = mech[6]
     for j in range(k.shape[0]):
         k[j] *= mult[j]
@@ -605,14 +635,24 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode, heat=None):
             heat_cap += y[i] * cp[i]
             if i != e:
                 N_heavy += y[i]
-        if e >= 0 and drift > 0.0 and E_N_Td > 0.0 and abs(drift) < math.inf:
-            P_e = E_CHARGE * y[e] * drift * E_N_Td * 1e-21 * N_heavy
+        w_gain = drift if i_eps < 0 else muN * E_N_Td    # e w E, or e mu E^2 (LMEA)
+        if e >= 0 and w_gain > 0.0 and E_N_Td > 0.0 and abs(w_gain) < math.inf:
+            P_e = E_CHARGE * y[e] * w_gain * E_N_Td * 1e-21 * N_heavy
         q_loss = cond[COND_HEAT_LOSS] * (Tg - cond[COND_T_WALL])
         Tdot = (P_e + q_chem - q_loss) / heat_cap if heat_cap > 0.0 else 0.0
         f_out[n_s] = Tdot
         scal[3] = P_e
         scal[4] = q_loss
         scal[5] = Tdot
+    eps_dot = 0.0
+    N_e_heavy = 0.0
+    if heat is not None and i_eps >= 0:
+        # LOCAL MEAN ENERGY: d<eps>/dt = N mu N [(E/N)^2 - (E/N)_eff^2] (eV/s per electron)
+        for i in range(n_s):
+            if i != e:
+                N_e_heavy += y[i]
+        eps_dot = N_e_heavy * muN * (E_N_Td * E_N_Td - E_tab * E_tab) * 1e-21
+        f_out[i_eps] = eps_dot
     add_linear_terms(y, linear, f_out)
     prescribed = cond[COND_PRESCRIBED] != 0.0 and e >= 0
     if prescribed:
@@ -666,6 +706,11 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode, heat=None):
                     acc -= nu[m] * lin
                 dP = dP_e if m == e else dP_heavy
                 J_out[n_s, m] = (dP - acc - Tdot * cp[m]) / heat_cap if heat_cap > 0.0 else 0.0
+        if heat is not None and i_eps >= 0 and N_e_heavy > 0.0:
+            # LOCAL MEAN ENERGY: its row (the column comes from the caller's difference)
+            for m in range(n_s):
+                if m != e:
+                    J_out[i_eps, m] = eps_dot / N_e_heavy
         if prescribed:
             w[e] = 0.0
             for m in range(n):
@@ -703,24 +748,26 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode, heat=None):
 def heat_arrays(model):
     """The ``heat`` argument of :func:`evaluate` for ``model``: None at a fixed gas
     temperature, otherwise the enthalpy and heat-capacity scratch of ``work``."""
-    if model[4][COND_ENERGY] == 0.0:
+    if model[4][COND_ENERGY] == 0.0 and model[4][COND_LMEA] == 0.0:
         return None
     return (model[5][W_ENTHALPY], model[5][W_HEAT_CAPACITY])
 
 
 def temperature_column(E_N_Td, y, model, f0, J_out):
-    """Fill the temperature column of ``J_out`` by a forward difference (energy equation).
+    """Fill the columns of the extra state entries (gas temperature, mean electron energy)
+    of ``J_out`` by forward differences.
 
-    ``f0`` = f(y) from :func:`evaluate`; one more right-hand side at T + dT, dT =
-    ``TEMPERATURE_STEP`` T (module docstring). Plain Python over the compiled kernel, for
-    callers outside the step loop (which does the same inline).
+    ``f0`` = f(y) from :func:`evaluate`; one more right-hand side per entry x at x + dx,
+    dx = ``TEMPERATURE_STEP`` max(x, 1) (module docstring). Plain Python over the compiled
+    kernel, for callers outside the step loop (which does the same inline).
     """
     n_s = model[2][0].shape[0]
-    yp = np.array(y, dtype=np.float64, copy=True)
-    yp[n_s] = y[n_s] + TEMPERATURE_STEP * max(y[n_s], 1.0)
-    fp = np.zeros_like(yp)
-    evaluate(E_N_Td, yp, model, fp, np.zeros((1, 1)), RHS, heat_arrays(model))
-    J_out[:, n_s] = (fp - f0) / (yp[n_s] - y[n_s])
+    for col in range(n_s, len(y)):
+        yp = np.array(y, dtype=np.float64, copy=True)
+        yp[col] = y[col] + TEMPERATURE_STEP * max(y[col], 1.0)
+        fp = np.zeros_like(yp)
+        evaluate(E_N_Td, yp, model, fp, np.zeros((1, 1)), RHS, heat_arrays(model))
+        J_out[:, col] = (fp - f0) / (yp[col] - y[col])
 
 
 @njit(cache=True)

@@ -146,6 +146,11 @@ class KineticsResult:
     heat_loss_J_m3 : ndarray (n_t,)
         With an energy equation: cumulative integral of the wall heat loss times phi, J per
         initial volume (zeros otherwise).
+    electron_energy : str
+        "local_field" or "local_mean_energy".
+    effective_E_N_Td : ndarray (n_t,)
+        The field at which the table gives the electrons' mean energy, Td: E/N itself with
+        the local field approximation, (E/N)_eff with the local mean energy one.
     """
 
     species: tuple
@@ -175,6 +180,8 @@ class KineticsResult:
     energy_equation: str = ""
     electron_energy_J_m3: np.ndarray = None
     heat_loss_J_m3: np.ndarray = None
+    electron_energy: str = "local_field"
+    effective_E_N_Td: np.ndarray = None
 
     @property
     def success(self):
