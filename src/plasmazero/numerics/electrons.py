@@ -234,8 +234,10 @@ def field_for_mean_energy(E_N_grid, ln_E_N_grid, mean_table, drift_table, mean_e
     n = E_N_grid.shape[0]
     if mean_eV <= mean_table[0]:
         E = E_N_grid[0]
+        drift = drift_table[0]
     elif mean_eV >= mean_table[n - 1]:
         E = E_N_grid[n - 1]
+        drift = drift_table[n - 1]
     else:
         lo = 0
         hi = n - 1
@@ -245,29 +247,15 @@ def field_for_mean_energy(E_N_grid, ln_E_N_grid, mean_table, drift_table, mean_e
                 lo = mid
             else:
                 hi = mid
+        # the weight of mean_eV on [lo, hi] is the interpolation weight of E there, so the
+        # drift at E follows with the same weight
         w = (mean_eV - mean_table[lo]) / (mean_table[hi] - mean_table[lo])
         if E_N_grid[lo] <= 0.0:
             E = w * E_N_grid[hi]
         else:
             E = math.exp(ln_E_N_grid[lo] + w * (ln_E_N_grid[hi] - ln_E_N_grid[lo]))
+        drift = (1.0 - w) * drift_table[lo] + w * drift_table[hi]
     if E > 0.0:
-        # drift at E by the interpolation rule, over E
-        if E >= E_N_grid[n - 1]:
-            return E, drift_table[n - 1] / E
-        lo = 0
-        hi = n - 1
-        while hi - lo > 1:
-            mid = (lo + hi) // 2
-            if E_N_grid[mid] <= E:
-                lo = mid
-            else:
-                hi = mid
-        if E_N_grid[lo] <= 0.0:
-            w = E / E_N_grid[hi]
-        elif E <= E_N_grid[0]:
-            return E, drift_table[0] / E
-        else:
-            w = (math.log(E) - ln_E_N_grid[lo]) / (ln_E_N_grid[hi] - ln_E_N_grid[lo])
-        return E, ((1.0 - w) * drift_table[lo] + w * drift_table[hi]) / E
-    k = 1 if n > 1 else 0
+        return E, drift / E
+    k = 1 if n > 1 else 0        # zero field: the limit w / E from the first positive row
     return E, (drift_table[k] / E_N_grid[k] if E_N_grid[k] > 0.0 else 0.0)
