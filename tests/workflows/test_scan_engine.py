@@ -157,8 +157,9 @@ def test_a_running_scan_file_is_locked(tmp_path):
 
 def test_bad_inputs_are_input_errors_before_anything_runs(tmp_path):
     path = tmp_path / "scan.h5"
-    with pytest.raises(InputError, match="power.applied.amplitud_V: unknown key path"):
+    with pytest.raises(InputError, match="power.applied.amplitud_V: unknown key path") as err:
         run_scan(manley_point, MANLEY_BASE, ["power.applied.amplitud_V=1,2"], scan_file=path, progress=False)
+    assert len(err.value.problems) == 1           # named once, not once per point
     with pytest.raises(InputError, match="expected grid or latin:N"):
         run_scan(manley_point, MANLEY_BASE, [AMPLITUDES], design="random", progress=False)
     with pytest.raises(InputError, match="package.module:function"):
@@ -258,7 +259,10 @@ def test_plots_of_a_scan():
                    workers=0, progress=False)
     fig = plot_versus_parameter(res, "power_W", "power.applied.amplitude_V")
     ax = fig.axes[0]
-    assert len(ax.lines) == 3 and ax.get_xlabel() == "power.applied.amplitude_V" and ax.get_ylabel() == "power_W"
+    # labels carry the unit read from the name's suffix
+    assert len(ax.lines) == 3 and ax.get_xlabel() == "power.applied.amplitude_V (V)" and ax.get_ylabel() == "power_W (W)"
+    assert [t.get_text() for t in ax.get_legend().get_texts()] == [f"power.applied.frequency_Hz = {f:g} Hz"
+                                                                   for f in (1e4, 2e4, 5e4)]
     x, y = ax.lines[1].get_data()                       # f = 2e4 Hz
     assert list(x) == [4000.0, 6000.0, 8000.0, 10000.0]
     assert np.allclose(y, [manley_closed_form(u, 2e4, 2500.0, 1e-10, 2e-11) for u in x], rtol=1e-12)
@@ -272,3 +276,46 @@ def test_plots_of_a_scan():
         plot_heat_map(three, "power_W", "power.applied.amplitude_V", "power.applied.frequency_Hz")
     header, rows = summary_table(res)
     assert len(rows) == 12 and header[4] == "power_W"
+    # the cells carry their values, as the colour bar does
+    texts = [t.get_text() for t in heat.axes[0].texts]
+    assert f"{manley_closed_form(10000.0, 5e4, 2500.0, 1e-10, 2e-11):.3g}" in texts and len(texts) == 12
+
+
+def test_axis_labels_read_units_from_names():
+    pytest.importorskip("matplotlib")
+    from plasmazero.interfaces.scan_plots import axis_label, spans_decades, unit_of
+
+    # units in names are the project's convention (DEVELOPERS.md); "-" is dimensionless
+    assert unit_of("power.absorbed_W") == "W" and unit_of("sei_kJ_L") == "kJ/L"
+    assert unit_of("sei_eV_per_molecule") == "eV/molecule" and unit_of("discharge.E_N_Td") == "Td"
+    assert unit_of("feed.flow_sccm") == "sccm" and unit_of("discharge.pulse_duration_s") == "s"
+    assert unit_of("reactor.packed_bed.porosity") == "-" and unit_of("discharge.pulses") == "-"
+    # species names are not units: C, K, F are species here
+    assert unit_of("bed_mole_fraction_C") == "-" and unit_of("conversion_CO2") == "-"
+    assert axis_label("selectivity_C_CO") == "C selectivity to CO (-)"
+    assert axis_label("feed.mole_fractions.H2") == "H2 mole fraction, feed (-)"
+    assert axis_label("reactor.packed_bed.surface_losses[0].sticking") == \
+        "reactor.packed_bed.surface_losses[0].sticking (-)"
+    assert spans_decades([1e-5, 1e-3, np.nan]) and not spans_decades([0.1, 0.5]) and not spans_decades([-1, 1e3])
+
+
+def test_largest_predicted_first_follows_the_fitted_cost():
+    from plasmazero.workflows.scan import cost_features, largest_predicted_first, scan_plan
+
+    plan = scan_plan(["power.absorbed_W=5:15:6", "discharge.mode=filaments,uniform"])
+    x = cost_features(plan)
+    assert x.shape == (12, 1)                     # the word parameter is left out
+    assert x[0, 0] == 0.0 and x[-1, 0] == 1.0
+    # exact affine costs are recovered exactly by least squares (analytic): the pending
+    # point of largest cost comes first, whatever its place in the plan (grid order: the
+    # last variation changes fastest, so points 2i and 2i+1 share a power)
+    cost = 2.0 + 3.0 * x[:, 0]
+    done = {i: cost[i] for i in (0, 2, 4)}
+    pending = [3, 6, 11, 7, 10]
+    assert largest_predicted_first(pending, x, done) == 2                      # point 11, x = 1
+    assert largest_predicted_first(pending, x, {0: 5.0, 2: 4.0, 4: 3.0}) == 0  # falling cost: point 3
+    # too few finished points for the fit (one more than the two coefficients), or no
+    # numeric parameter: plan order
+    assert largest_predicted_first(pending, x, {0: 1.0, 2: 2.0}) == 0
+    assert largest_predicted_first(pending, None, done) == 0
+    assert cost_features(scan_plan(["discharge.mode=filaments,uniform"])) is None

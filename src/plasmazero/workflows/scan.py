@@ -35,11 +35,15 @@ Where the points run
     The points go to a running ``dask.distributed`` scheduler (needs the ``scan`` extra).
 
 At most two points per worker are in flight, so a killed driver loses little work and
-memory stays flat. A worker process that dies (segmentation fault, out of memory) breaks
-the pool; the points that were in flight are then run again one at a time in a fresh
-pool, and the one that kills its worker alone is recorded as failed. Workers watch the
-driver and exit within a second when it is gone (killed). Each point gets its own copies
-of ``doc`` and ``context``. Dask workers must be able to import plasmazero and the point
+memory stays flat. Local workers get the points longest first as far as that can be
+told: once a few points have finished, the wall time of the others is predicted by a
+least-squares fit on the numeric parameter values and the longest predicted is handed out
+next, so that short points are left for the end and the workers finish together (Graham's
+longest-processing-time-first rule; :func:`largest_predicted_first`). A worker process
+that dies (segmentation fault, out of memory) breaks the pool; the points that were in
+flight are then run again one at a time in a fresh pool, and the one that kills its
+worker alone is recorded as failed. Workers watch the driver and exit within a second
+when it is gone (killed). Each point gets its own copies of ``doc`` and ``context``. Dask workers must be able to import plasmazero and the point
 function's module.
 
 Compilation
@@ -47,9 +51,12 @@ Compilation
 The numba kernels are compiled with ``cache=True``: the machine code goes to the on-disk
 cache (``__pycache__`` beside the sources, or ``NUMBA_CACHE_DIR``) and is loaded from there
 by every later process. To keep the workers from compiling the same kernels in parallel
-on a cold cache, the engine evaluates the first pending point in the driver before it
-starts the pool (``warm_up=True``): its compilation fills the cache, and the workers only
-load from it. (Dask workers on other machines fill their own caches on first use.)
+on a cold cache (two processes saving the same function's cache at once may pair an index
+entry with another signature's code), the engine evaluates the first pending point in the
+driver before the workers get any point (``warm_up=True``): its compilation fills the
+cache, and the workers only load from it. The worker processes are started meanwhile, in
+a thread (their start waits for the fork server's imports), so that this overlaps with the
+driver's point. (Dask workers on other machines fill their own caches on first use.)
 
 Checkpoint
 ----------
@@ -377,21 +384,36 @@ def scan_plan(variations, design="grid", seed=0, source=None):
 
 
 def _docs(base, plan, scenario_file):
-    """The mapping of every point (InputError listing every bad point)."""
+    """The mapping of every point.
+
+    Raises
+    ------
+    InputError
+        One line per distinct problem: a problem of every point (an unknown key path) is
+        named once; one of some points names the first of them and how many others.
+    """
     if not plan.edits_doc:
         doc = plain(base)
         return [doc] * len(plan)
-    docs, problems = [], []
+    docs, seen = [], {}
     for i, row in enumerate(plan.values):
         try:
             docs.append(apply_values(base, dict(zip(plan.parameters, row)), file=scenario_file))
         except InputError as exc:
-            where = ", ".join(f"{p}={v}" for p, v in zip(plan.parameters, row))
-            problems.extend(f"{p} (point {i}: {where})" for p in exc.problems)
+            for p in exc.problems:
+                seen.setdefault(p, []).append(i)
             docs.append(None)
-    if problems:
-        unique = list(dict.fromkeys(problems))
-        raise InputError(unique[:20] + ([f"... and {len(unique) - 20} more"] if len(unique) > 20 else []))
+    if seen:
+        lines = []
+        for p, points in seen.items():
+            if len(points) == len(plan):
+                lines.append(p)
+                continue
+            row = plan.values[points[0]]
+            where = ", ".join(f"{k}={v}" for k, v in zip(plan.parameters, row))
+            more = f"; and {len(points) - 1} more point{'s' if len(points) > 2 else ''}" if len(points) > 1 else ""
+            lines.append(f"{p} (point {points[0]}: {where}{more})")
+        raise InputError(lines[:20] + ([f"... and {len(lines) - 20} more"] if len(lines) > 20 else []))
     return docs
 
 
@@ -523,12 +545,17 @@ def run_plan(evaluate, base, plan, *, context=None, scan_file=None, workers=None
                 while jobs:
                     i, doc, ctx = jobs.popleft()
                     on_record(evaluate_point(func, doc, ctx, i))
-            else:
-                if warm_up and jobs:
-                    i, doc, ctx = jobs.popleft()
-                    on_record(evaluate_point(func, doc, ctx, i))
+            elif jobs:
+                warm = None
+                if warm_up:
+                    first = jobs.popleft()
+                    if jobs:
+                        warm = (first, lambda j: on_record(evaluate_point(func, j[1], j[2], j[0])))
+                    else:            # a single point: no pool
+                        on_record(evaluate_point(func, first[1], first[2], first[0]))
                 if jobs:
-                    _run_pool(spec, jobs, n_workers, on_record, _start_method(), _preload(spec))
+                    _run_pool(spec, jobs, n_workers, on_record, _start_method(), _preload(spec), warm=warm,
+                              features=cost_features(plan))
         finally:
             if bar is not None:
                 bar.close()
@@ -602,14 +629,40 @@ def _worker_init(driver_pid):
     threading.Thread(target=_watch_driver, args=(driver_pid, os.getppid()), daemon=True).start()
 
 
-def _probe(ex, spec):
-    """Check that worker processes start and can import the point function.
+def _start_probes(ex, spec, n_workers):
+    """Start the worker processes of ``ex`` from a background thread, each first importing
+    the point function; returns (thread, outcomes) for :func:`_check_probes`.
+
+    Starting a worker waits for the fork server's imports; in a thread, that overlaps with
+    what the driver does meanwhile (the warm-up point). The workers run no point yet.
+    """
+    outcomes = []
+
+    def start():
+        try:
+            for _ in range(n_workers):
+                outcomes.append(ex.submit(resolve_point_function, spec))
+        except Exception as exc:  # noqa: BLE001 - reported by _check_probes
+            outcomes.append(exc)
+
+    thread = threading.Thread(target=start, name="plasmazero-pool-start", daemon=True)
+    thread.start()
+    return thread, outcomes
+
+
+def _check_probes(ex, probes):
+    """Check that the worker processes started and can import the point function.
 
     Without this, a pool whose workers die while starting (an unguarded main module, a
     module the workers cannot import) would be taken for a series of crashing points.
     """
+    thread, outcomes = probes
+    thread.join()
     try:
-        ex.submit(resolve_point_function, spec).result()
+        for item in outcomes:
+            if isinstance(item, BaseException):
+                raise item
+            item.result()
     except BrokenProcessPool:
         ex.shutdown(wait=False, cancel_futures=True)
         raise RuntimeError("worker processes die while starting: if the scan is started from a script, "
@@ -619,29 +672,100 @@ def _probe(ex, spec):
         raise RuntimeError(f"worker processes cannot load the point function ({_error_text(exc)})") from None
 
 
-def _run_pool(spec, jobs, n_workers, on_record, start_method, preload):
-    """Run ``jobs`` (deque of (index, doc, context)) on a local process pool."""
+def cost_features(plan):
+    """Per-point numbers that the cost of a point may depend on: (n, p) float array or None.
+
+    The numeric parameter values of the plan (words and parameters that do not change are
+    left out); None when there are none. Used by :func:`largest_predicted_first`.
+    """
+    cols = []
+    for c in range(len(plan.parameters)):
+        col = [row[c] for row in plan.values]
+        if all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in col):
+            a = np.asarray(col, dtype=np.float64)
+            if np.all(np.isfinite(a)) and np.ptp(a) > 0:
+                cols.append((a - a.min()) / np.ptp(a))
+    return np.column_stack(cols) if cols else None
+
+
+def largest_predicted_first(pending, features, done):
+    """Position in ``pending`` of the point with the largest predicted wall time.
+
+    A point's wall time is predicted by least squares of the wall times of the points
+    finished so far (``done``: index -> s) on an affine function of their ``features``
+    (:func:`cost_features`). Handing out the longest points first leaves short ones for
+    the end of the scan, so that the workers finish together: the longest-processing-
+    time-first rule of Graham (1969), SIAM J. Appl. Math. 17, 416, with predicted times.
+    Before there are enough finished points for the fit (one more than coefficients),
+    or without features, it is the first pending point (plan order).
+
+    Parameters
+    ----------
+    pending : sequence of int
+        Indices of the points not yet handed out.
+    features : ndarray (n, p) or None
+    done : dict
+        Index -> wall time of finished points, s.
+    """
+    if features is None or len(pending) < 2:
+        return 0
+    idx = [i for i, t in done.items() if math.isfinite(t)]
+    p = features.shape[1]
+    if len(idx) < p + 2:
+        return 0
+    a = np.column_stack([np.ones(len(idx)), features[idx]])
+    coef, *_ = np.linalg.lstsq(a, np.array([done[i] for i in idx]), rcond=None)
+    pred = coef[0] + features[list(pending)] @ coef[1:]
+    return int(np.argmax(pred))
+
+
+def _run_pool(spec, jobs, n_workers, on_record, start_method, preload, warm=None, features=None):
+    """Run ``jobs`` (deque of (index, doc, context)) on a local process pool.
+
+    ``warm`` is (job, evaluate) or None: the job is evaluated by ``evaluate(job)`` in this
+    process after the pool has started (its worker processes start and import while the
+    driver computes; they get no point before it has finished, module docstring). With
+    ``features`` (:func:`cost_features`), the points are handed out longest predicted
+    first (:func:`largest_predicted_first`).
+    """
     ctx = mp.get_context(start_method)
     if start_method == "forkserver":
         ctx.set_forkserver_preload(preload)
     suspects = deque()
-    while jobs or suspects:
+    wall_s = {}                 # index -> wall time of the points finished here, s
+    pending = list(jobs)
+    jobs.clear()
+
+    def next_job():
+        return pending.pop(largest_predicted_first([j[0] for j in pending], features, wall_s))
+
+    while pending or suspects or warm is not None:
         ex = ProcessPoolExecutor(max_workers=n_workers, mp_context=ctx, initializer=_worker_init,
                                  initargs=(os.getpid(),))
-        _probe(ex, spec)
+        try:
+            probes = _start_probes(ex, spec, n_workers)
+            if warm is not None:
+                (j, evaluate), warm = warm, None
+                evaluate(j)
+            _check_probes(ex, probes)
+        except BaseException:
+            ex.shutdown(wait=False, cancel_futures=True)
+            raise
         inflight = {}
         broken = False
         try:
-            while (jobs or suspects or inflight) and not broken:
+            while (pending or suspects or inflight) and not broken:
                 isolating = bool(suspects)
-                source = suspects if isolating else jobs
                 limit = 1 if isolating else IN_FLIGHT_PER_WORKER * n_workers
-                while source and len(inflight) < limit:
-                    j = source.popleft()
+                while (suspects if isolating else pending) and len(inflight) < limit:
+                    j = suspects.popleft() if isolating else next_job()
                     try:
                         inflight[ex.submit(evaluate_point, spec, j[1], j[2], j[0])] = (j, isolating)
                     except BrokenProcessPool:      # broken by a point in flight, or a worker died
-                        source.appendleft(j)
+                        if isolating:
+                            suspects.appendleft(j)
+                        else:
+                            pending.insert(0, j)
                         broken = True
                         break
                 if broken or not inflight:
@@ -661,6 +785,8 @@ def _run_pool(spec, jobs, n_workers, on_record, start_method, preload):
                         continue
                     except Exception as exc:  # noqa: BLE001 - e.g. arguments that do not pickle
                         rec = PointRecord(index=j[0], status=STATUS_FAILED, error=_error_text(exc))
+                    if rec.status == STATUS_OK:
+                        wall_s[rec.index] = rec.wall_time_s
                     on_record(rec)
             if broken:
                 for fut, (j, alone) in inflight.items():
