@@ -130,6 +130,9 @@ def test_apply_values_edits_a_copy_and_keeps_whole_numbers(base):
     validate_scenario(doc)
     with pytest.raises(InputError, match="whole number"):
         apply_values(base, {"discharge.pulses": 20.5})
+    # a key that takes any number stays free where the base file writes a whole one
+    # (absorbed_W: 20 in the base): the schema, not the base value, decides
+    assert apply_values(base, {"power.absorbed_W": 12.7})["power"]["absorbed_W"] == 12.7
     assert split_path("a.b[2][0].c") == ["a", "b", 2, 0, "c"]
 
 

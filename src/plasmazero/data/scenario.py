@@ -114,6 +114,16 @@ _SCHEMA = {
     "output": {"eedf_samples": int},
 }
 
+def is_whole_number_key(path):
+    """True when the scenario key ``path`` ("discharge.pulses") takes a whole number."""
+    node = _SCHEMA
+    for part in path.split("."):
+        if not isinstance(node, dict) or part not in node:
+            return False
+        node = node[part]
+    return node is int
+
+
 _SURFACE_LOSS_KEYS = {"species", "sticking", "products"}
 
 

@@ -33,9 +33,10 @@ others keep their ratios and sum to ``1 - x`` (``x`` the sum of the entries set)
 error when ``x > 1`` (beyond 1e-9), when a value is outside [0, 1], and when ``x < 1`` but
 the other entries are all zero (there is nothing to scale).
 
-Numbers replacing a whole number of the base mapping (``discharge.pulses``) stay whole
-numbers when they are integral (``20.0`` -> ``20``); a non-integral value replacing one is
-an error.
+Keys that take a whole number (``discharge.pulses``, ``discharge.seed``: the scenario
+schema says which) stay whole numbers when the value is integral (``20.0`` -> ``20``); a
+non-integral value there is an error. Other keys take any number, also where the base
+file happens to write a whole one (``absorbed_W: 10`` varied to 5.9).
 """
 
 from __future__ import annotations
@@ -48,6 +49,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from plasmazero.data.scenario import is_whole_number_key
 from plasmazero.data.errors import InputError, format_problem
 
 #: the key path whose last key may be a new species, and whose entries are renormalised
@@ -259,8 +261,9 @@ def plain(obj):
 
 
 def _convert(old, new, where, file):
-    """The value stored for ``new`` replacing ``old`` (whole numbers stay whole)."""
-    if isinstance(old, int) and not isinstance(old, bool) and isinstance(new, float):
+    """The value stored for ``new`` replacing ``old`` (whole-number keys stay whole)."""
+    if (isinstance(old, int) and not isinstance(old, bool) and isinstance(new, float)
+            and is_whole_number_key(where)):
         if not new.is_integer():
             raise InputError([format_problem(file, where, f"expects a whole number, got {new:g}")])
         return int(new)
