@@ -143,6 +143,21 @@ def table_arrays(table, n_processes):
 
 
 @njit(cache=True)
+def _bracket(grid, x):
+    """Indices (lo, lo + 1) of the interval of the increasing ``grid`` that holds ``x``
+    (grid[0] < x < grid[-1]), by bisection."""
+    lo = 0
+    hi = grid.shape[0] - 1
+    while hi - lo > 1:
+        mid = (lo + hi) // 2
+        if grid[mid] <= x:
+            lo = mid
+        else:
+            hi = mid
+    return lo, hi
+
+
+@njit(cache=True)
 def interpolate_table(E_N_grid, ln_E_N_grid, k_table, mean_table, drift_table, E_N_Td, k_out):
     """Interpolate an electron table at one reduced field.
 
@@ -182,14 +197,7 @@ def interpolate_table(E_N_grid, ln_E_N_grid, k_table, mean_table, drift_table, E
         for p in range(n_p):
             k_out[p] = k_table[n - 1, p]
         return mean_table[n - 1], drift_table[n - 1]
-    lo = 0
-    hi = n - 1
-    while hi - lo > 1:
-        mid = (lo + hi) // 2
-        if E_N_grid[mid] <= E_N_Td:
-            lo = mid
-        else:
-            hi = mid
+    lo, hi = _bracket(E_N_grid, E_N_Td)
     if E_N_grid[lo] <= 0.0:
         w = E_N_Td / E_N_grid[hi]
     else:
@@ -239,14 +247,7 @@ def field_for_mean_energy(E_N_grid, ln_E_N_grid, mean_table, drift_table, mean_e
         E = E_N_grid[n - 1]
         drift = drift_table[n - 1]
     else:
-        lo = 0
-        hi = n - 1
-        while hi - lo > 1:
-            mid = (lo + hi) // 2
-            if mean_table[mid] <= mean_eV:
-                lo = mid
-            else:
-                hi = mid
+        lo, hi = _bracket(mean_table, mean_eV)
         # the weight of mean_eV on [lo, hi] is the interpolation weight of E there, so the
         # drift at E follows with the same weight
         w = (mean_eV - mean_table[lo]) / (mean_table[hi] - mean_table[lo])
