@@ -8,6 +8,8 @@ constants plasmazero carries).
 import copy
 
 import numpy as np
+import math
+
 import pytest
 import scipy.constants as sc
 import yaml
@@ -446,3 +448,25 @@ def test_thermo_library_may_be_a_list_of_files(tmp_path):
     path, problems = _problems(tmp_path, BASE.replace(f"thermo_library: {LIBRARY}",
                                                       f"thermo_library: [{LIBRARY}, {dup}]"))
     assert any("thermo_library" in p and "'O2' is in more than one" in p and str(path) in p for p in problems)
+
+
+def test_statistical_weight_of_a_state_raises_its_entropy(tmp_path):
+    # s_state = s_parent + R ln g at every temperature (Boltzmann population of a level of
+    # degeneracy g; common practice, no source): the 7th NASA coefficient rises by ln g
+    text = BASE.replace("    energy_eV: 11.5\n", "    energy_eV: 11.5\n    statistical_weight: 5\n")
+    m = load_mechanism(_write(tmp_path, text), check_expression=_check)
+    ar, star = m.species[1], m.species[3]
+    assert star.statistical_weight == 5.0
+    for rng in range(2):
+        assert star.nasa7[0][rng][6] == pytest.approx(ar.nasa7[0][rng][6] + math.log(5.0), abs=1e-12)
+        assert list(star.nasa7[0][rng][:6]) == list(ar.nasa7[0][rng][:6])
+
+
+@pytest.mark.parametrize("change, message", [
+    (("    energy_eV: 11.5\n", "    energy_eV: 11.5\n    statistical_weight: 0\n"), "positive number"),
+    (("  - name: O\n    composition: {O: 1}\n", "  - name: O\n    composition: {O: 1}\n    statistical_weight: 2\n"),
+     "statistical_weight is only allowed with state_of"),
+])
+def test_statistical_weight_errors(tmp_path, change, message):
+    _, problems = _problems(tmp_path, BASE.replace(*change))
+    assert any(message in p for p in problems), problems

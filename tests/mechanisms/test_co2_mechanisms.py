@@ -250,13 +250,40 @@ def test_co2_bending_relaxation(compiled):
 
 
 def test_detailed_balance_of_vt(compiled):
-    """The reverse of CO2(010) + M -> CO2 + M obeys k_r / k_f = exp(-E/kT) (equal entropies of
-    a state and its parent: the state takes the parent's polynomials; common practice)."""
+    """The reverse of CO2(010) + M -> CO2 + M obeys k_r / k_f = g exp(-E/kT) with g = 2, the
+    degeneracy of the bending level (Boltzmann population of a degenerate level; Herzberg
+    1945, Infrared and Raman Spectra, recalled): the state's thermo carries R ln g of
+    entropy. (Before the statistical weights were in the thermo this ratio was exp(-E/kT),
+    and V-T relaxation drove a thermal feed to half its bending population.)"""
     mech = compiled["co2"]
     j = _row(mech, "CO2(010) + M <=> CO2 + M")
     k, _ = evaluate_rate_coefficients(mech, 400.0)
     assert mech.reverse_of[j + 1] == j
-    assert k[j + 1] / k[j] == pytest.approx(math.exp(-0.083 * 11604.518 / 400.0), rel=1e-6)
+    assert k[j + 1] / k[j] == pytest.approx(2.0 * math.exp(-0.083 * 11604.518 / 400.0), rel=1e-6)
+
+
+def test_thermal_feed_is_the_equilibrium_of_the_kinetics():
+    """A feed put at its Boltzmann populations (with the statistical weights) is a steady
+    state of the heavy-particle kinetics: V-T relaxation releases no heat (first law: an
+    equilibrium state does not heat itself; common practice, no source)."""
+    from plasmazero.data.scenario import load_scenario
+    from plasmazero.numerics.integrate import build_model
+    from plasmazero.numerics.kinetics import RATES, evaluate
+    from plasmazero.physics.compiled import reaction_enthalpies_J_mol
+    from plasmazero.workflows import dbd
+    from plasmazero.workflows.examples import example_path
+    path = example_path("co2_splitting")
+    setup = dbd.prepare(load_scenario(path), path)
+    mech = setup.compiled
+    y = setup.y0_m3
+    model = build_model(mech, setup.T_gas_K, electron_table=setup.feed_tables[0])
+    n = len(y)
+    evaluate(0.0, y, model, np.zeros(n), np.zeros((n, n)), RATES, None)
+    r = model[5][3]
+    dH = reaction_enthalpies_J_mol(mech, setup.T_gas_K) / 6.02214076e23
+    heat = -np.nansum(r * dH)                       # W/m^3
+    gross = np.nansum(np.abs(r * dH))
+    assert abs(heat) < 1e-6 * gross, (heat, gross)
 
 
 # --------------------------------------------------------------------------- few-pulse runs

@@ -59,7 +59,9 @@ composition is ``{E: 1}`` alone with charge -1.
 A species with ``state_of`` is an electronic or vibrational state of its parent (which must
 be listed, and not be a state itself): it has the parent's composition and charge (if given
 they must agree) and the parent's thermochemistry with the enthalpy raised by
-``energy_eV`` (>= 0). It takes no ``thermo`` of its own.
+``energy_eV`` (>= 0) and the entropy by R ln ``statistical_weight`` (the state's degeneracy
+over the parent's, default 1), so that detailed balance gives the Boltzmann population
+g exp(-E/kT). It takes no ``thermo`` of its own.
 
 Thermochemistry of a species, in this order: its inline ``thermo`` block (validated by
 :func:`plasmazero.data.thermo_library.parse_nasa7`); the entry of the same name in the
@@ -161,7 +163,8 @@ from .yamlio import is_finite_number, line_of, read_yaml
 
 TOP_KEYS = {"name", "description", "source", "provenance", "note", "units", "elements",
             "cross_sections", "thermo_library", "species", "reactions"}
-SPECIES_KEYS = {"name", "composition", "charge", "thermo", "state_of", "energy_eV", "note"}
+SPECIES_KEYS = {"name", "composition", "charge", "thermo", "state_of", "energy_eV",
+                "statistical_weight", "note"}
 THERMO_KEYS = {"nasa7", "source", "provenance", "note"}
 REACTION_KEYS = {"equation", "rate", "efficiencies", "source", "provenance", "note",
                  "uncertainty_factor", "duplicate"}
@@ -212,6 +215,8 @@ class SpeciesRecord:
     charge: int
     state_of: str | None = None
     energy_eV: float = 0.0
+    #: degeneracy of a state over that of its parent (1 for ground species)
+    statistical_weight: float = 1.0
     #: ((2, 7) coefficients, (3,) temperatures in K) or None when no thermo is known
     nasa7: tuple | None = None
     #: where the thermo comes from: "inline", "library", "parent:<name>" or ""
@@ -408,8 +413,9 @@ def _parse_species(doc, elements, path, problems, library):
     for name, entry, line, label in raw:
         if "state_of" in entry:
             continue
-        if "energy_eV" in entry:
-            problems.add(label, "energy_eV is only allowed with state_of", line_of(entry, "energy_eV"))
+        for key in ("energy_eV", "statistical_weight"):
+            if key in entry:
+                problems.add(label, f"{key} is only allowed with state_of", line_of(entry, key))
         charge = entry.get("charge", 0)
         n_before = len(problems.lines)
         if not _integer(charge):
@@ -437,6 +443,10 @@ def _parse_species(doc, elements, path, problems, library):
         if not _number(energy) or energy < 0:
             problems.add(label, "energy_eV (excitation energy above the parent, eV) is missing or "
                          "not a non-negative number", line_of(entry, "energy_eV"))
+        weight = entry.get("statistical_weight", 1.0)
+        if not _number(weight) or not weight > 0:
+            problems.add(label, "statistical_weight (degeneracy of the state over that of the "
+                         "parent) must be a positive number", line_of(entry, "statistical_weight"))
         if "thermo" in entry:
             problems.add(label, "a state takes its parent's thermo shifted by energy_eV; remove thermo",
                          line_of(entry, "thermo"))
@@ -479,19 +489,39 @@ def _parse_species(doc, elements, path, problems, library):
         state_of = entry.get("state_of") if "state_of" in entry else None
         energy = entry.get("energy_eV", 0.0) if state_of else 0.0
         energy = float(energy) if _number(energy) else 0.0
+        weight = entry.get("statistical_weight", 1.0) if state_of else 1.0
+        weight = float(weight) if _number(weight) and weight > 0 else 1.0
         if state_of:
-            nasa7 = nasa7_of.get(state_of)
+            nasa7 = _state_thermo(nasa7_of.get(state_of), weight)
             origin = f"parent:{state_of}" if nasa7 is not None else ""
             tsource = tsource_of.get(state_of, "")
         else:
             nasa7, origin, tsource = nasa7_of[name], from_of[name], tsource_of[name]
         records.append(SpeciesRecord(
             name=name, composition=dict(comp_of[name] or {}), charge=charge_of[name],
-            state_of=state_of, energy_eV=energy, nasa7=nasa7, thermo_from=origin,
+            state_of=state_of, energy_eV=energy, statistical_weight=weight, nasa7=nasa7,
+            thermo_from=origin,
             thermo_source=tsource, line=line))
     # species whose composition could not be read: reactions skip their balance check
     unreadable = set(names) - set(comp_of) | bad_composition
     return records, unreadable
+
+
+def _state_thermo(parent_nasa7, weight):
+    """NASA-7 of a state: the parent's with the entropy raised by R ln(weight).
+
+    A state with g_k times the parent's degeneracy has, at equal energy, R ln g_k more
+    entropy, so that equilibrium constants (and the reverse rates by detailed balance)
+    give the Boltzmann population n_k / n_0 = g_k exp(-E_k / k T). The 7th coefficient
+    is the entropy constant (s/R = ... + a7), so adding ln g to it in both ranges does
+    exactly that (McBride, Zehe & Gordon 2002, NASA/TP-2002-211556, eq. 4.3). The
+    excitation energy enters separately (``energy_eV``)."""
+    if parent_nasa7 is None or weight == 1.0:
+        return parent_nasa7
+    coeffs = [list(row) for row in parent_nasa7[0]]
+    for row in coeffs:
+        row[6] = float(row[6]) + math.log(weight)
+    return (coeffs, parent_nasa7[1])
 
 
 def _compare_with_library(rec, name, comp, charge, label, line, problems):
@@ -1148,7 +1178,8 @@ def mechanism_warnings(mech):
 
     Species never produced or never consumed by any reaction (counting both directions of
     reversible ones, by net stoichiometry), reactions without a source, ``duplicate: true``
-    without a duplicate, and cross-section processes no reaction uses.
+    without a duplicate, cross-section processes no reaction uses, and states whose
+    ``statistical_weight`` differs from the weight ratio of the cross section exciting them.
     """
     produced, consumed = set(), set()
     for r in mech.reactions:
@@ -1188,6 +1219,23 @@ def mechanism_warnings(mech):
             out.append(format_problem(mech.path, label, "marked duplicate but has no duplicate", r.line))
     used = {r.rate.params["process"].removesuffix(REVERSE_SUFFIX)
             for r in mech.reactions if r.rate.kind == "electron_impact"}
+    # a state's degeneracy (heavy-particle detailed balance) and the weight ratio of the
+    # cross section that excites it (superelastic collisions) must be the same number
+    species = {sp.name: sp for sp in mech.species}
+    procs = {p.id: p for cs in mech.cross_sections for p in cs.processes}
+    for r in mech.reactions:
+        if r.rate.kind != "electron_impact" or r.rate.params["process"].endswith(REVERSE_SUFFIX):
+            continue
+        proc = procs.get(r.rate.params["process"])
+        ratio = getattr(proc, "weight_ratio", None)
+        for name, _ in r.products:
+            st = species.get(name)
+            if (ratio is not None and st is not None and st.state_of
+                    and any(n == st.state_of for n, _ in r.reactants)
+                    and abs(ratio - st.statistical_weight) > 1e-6 * ratio):
+                out.append(format_problem(mech.path, f"species {name}",
+                                          f"statistical_weight {st.statistical_weight:g} differs from the "
+                                          f"weight_ratio {ratio:g} of cross section {proc.id}", st.line))
     for cs in mech.cross_sections:
         for p in cs.processes:
             if p.kind not in ("momentum_transfer", "total_momentum_transfer") and p.id not in used:

@@ -212,26 +212,21 @@ def _categories(loaded, compiled):
 def _thermalise_states(y, loaded, compiled, pmap, T_K):
     """Put the feed's excited states at their Boltzmann populations at the inlet temperature.
 
-    n_k = n_parent g_k exp(-E_k / k T) / Z, g_k the weight ratio of the cross section that
-    excites the state where the mechanism has one, else 1 (the feed is in thermal
-    equilibrium; the total of each parent is kept).
+    n_k = n_parent g_k exp(-E_k / k T) / Z, g_k the state's ``statistical_weight`` (the
+    same number its thermo carries, so that the kinetics starts in its own equilibrium; the
+    feed is in thermal equilibrium; the total of each parent is kept).
     """
     index = {s: i for i, s in enumerate(compiled.species)}
-    weight = {}
-    for xs in compiled.cross_sections:
-        for p in xs.processes:
-            if p.id in pmap["upper"] and p.weight_ratio:
-                weight[pmap["upper"][p.id]] = p.weight_ratio
     states = {}
     for sp in loaded.species:
         if sp.state_of and y[index[sp.state_of]] > 0:
-            states.setdefault(sp.state_of, []).append((index[sp.name], sp.energy_eV))
+            states.setdefault(sp.state_of, []).append((index[sp.name], sp.energy_eV, sp.statistical_weight))
     for parent, members in states.items():
         total = y[index[parent]]
-        w = np.array([weight.get(i, 1.0) * math.exp(-e_eV * EV_K / T_K) for i, e_eV in members])
+        w = np.array([g * math.exp(-e_eV * EV_K / T_K) for i, e_eV, g in members])
         z = 1.0 + w.sum()
         y[index[parent]] = total / z
-        for (i, _), wi in zip(members, w):
+        for (i, _, _), wi in zip(members, w):
             y[i] = total * wi / z
 
 
