@@ -197,7 +197,7 @@ def test_conduction_keeps_a_dbd_near_the_wall_temperature(co2_heated):
     # CO and O2 the main products, near the 2 : 1 of DBD CO2-splitting experiments (e.g.
     # Paulussen et al. 2010, Plasma Sources Sci. Technol. 19, 034015, from memory): the
     # filament heating destroys part of the ozone that a fixed 330 K keeps (4.5 : 1 there,
-    # mechanisms/README.md); measured 2.6 : 1 with 40 filaments, see the assertion's value
+    # mechanisms/README.md); measured 2.7 : 1 with 40 filaments, see the assertion's value
     bed = {r["species"]: r["mole_fraction"] for r in analysis.bed_feed(res)["rows"]}
     assert 1.5 < bed["CO"] / bed["O2"] < 3.2, bed["CO"] / bed["O2"]
     setup = res.setup
