@@ -6,6 +6,7 @@ import subprocess
 import sys
 
 import h5py
+import numpy as np
 import pytest
 import yaml
 
@@ -78,6 +79,19 @@ def test_plot_writes_figures(result_file, tmp_path):
     assert main(["plot", str(result_file), "-o", str(tmp_path / "fig")]) == 0
     names = {p.name for p in (tmp_path / "fig").iterdir()}
     assert {"densities.png", "electrons.png", "eedf.png", "bed_feed.png", "pathways_CO.png"} <= names
+    assert "gas_temperature.png" not in names          # fixed temperature: nothing to show
+
+
+def test_gas_temperature_figure_with_the_energy_equation():
+    pytest.importorskip("matplotlib")
+    from plasmazero.interfaces.result_plots import gas_temperature
+    t = np.linspace(0.0, 1.0, 50)
+    data = {"time_s": t, "gas_temperature_K": 300.0 + 50.0 * np.exp(-((t - 0.5) / 0.05) ** 2)}
+    fig = gas_temperature(data)
+    line = fig.axes[0].lines[0]
+    np.testing.assert_allclose(line.get_ydata(), data["gas_temperature_K"])
+    assert "K" in fig.axes[0].get_ylabel()
+    assert gas_temperature({"time_s": t, "gas_temperature_K": np.full(50, 300.0)}) is None
 
 
 def test_examples_and_init(tmp_path, capsys):

@@ -52,6 +52,9 @@ def run(args):
     out.mkdir(parents=True, exist_ok=True)
     figures = {"densities": rp.densities(data), "electrons": rp.electrons(data), "eedf": rp.eedfs(data),
                "bed_feed": rp.bed_feed_bars(data)}
+    temperature = rp.gas_temperature(data)
+    if temperature is not None:
+        figures["gas_temperature"] = temperature
     wanted = [s.strip() for s in args.species.split(",")] if args.species else \
         [s for s in ("CO", "H", "O") if s in data["species"]]
     for s in wanted:

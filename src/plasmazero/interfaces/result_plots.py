@@ -96,6 +96,22 @@ def electrons(data):
     return fig
 
 
+def gas_temperature(data):
+    """Gas temperature along the reactor (energy equation), with the filaments shaded; None
+    when the temperature is fixed (nothing to look at)."""
+    T = np.asarray(data["gas_temperature_K"], dtype=float)
+    if T.size == 0 or np.ptp(T) <= 1e-9 * T.max():
+        return None
+    fig = _figure(8.0, 4.0)
+    ax = fig.add_subplot()
+    t = data["time_s"]
+    ax.plot(t * 1e3, T, color="C3", lw=1.0)
+    ax.set_xlabel("time along the reactor (ms)")
+    ax.set_ylabel("gas temperature (K)")
+    ax.set_title("gas temperature (energy equation): each spike is a filament", fontsize=10)
+    return fig
+
+
 def eedfs(data):
     """EEDFs at the pulse field and in the afterglow (eV^-3/2, log scale)."""
     fig = _figure()
