@@ -83,11 +83,15 @@ untouched (the smaller kernels take the pieces they need)::
     table  = :func:`plasmazero.numerics.electrons.table_arrays`
     cond   = float64 array [T_gas_K, segment_t0_s, segment_E_N0_Td, segment_slope_Td_s,
                             expansion (1/0), electron_index (-1: none),
-                            electron_prescribed (1/0), electron_slope_m3_s]
+                            electron_prescribed (1/0), electron_slope_m3_s,
+                            energy equation (0/1/2), heat loss W/m^3/K, T_wall_K,
+                            local mean energy (1/0)]
     work   = (k (n_r,), dk_dnM (n_r,), n_M (n_r,), r (n_r,), k_electron (n_p,),
-              n_M_row (n_tb,), scalars (4,) = [S / N_D, N_D, S, 0], u (n_s,),
-              c (n_s,), w (n_s,),                 scratch, overwritten by every call
-              cache ...)                          the rate-coefficient cache (below)
+              n_M_row (n_tb,), scalars (6,) = [S / N_D, N_D, S, P_e, heat loss, dT/dt],
+              u (n_s,), c (n_s,), w (n_s,),       scratch, overwritten by every call
+              cache ... (work[10:16]),            the rate-coefficient cache (below)
+              h (n_s,), c_p (n_s,),               energy-equation scratch (work[16:18])
+              k_raw (n_r,), dk_raw (n_r,))        the cache before the multipliers
 
 Rate-coefficient cache
 ----------------------
