@@ -781,7 +781,7 @@ def build_model(mech, T_gas_K, *, electron_table=None, loss_frequency_s=None,
     kernel_args = tuple(mech.kernel_args)
     work = (np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_p),
             np.zeros(n_tb), np.zeros(6), np.zeros(n), np.zeros(n), np.zeros(n)) + \
-        rate_cache(kernel_args, ratelaws) + (np.zeros(n), np.zeros(n), np.zeros(n_r), np.zeros(n_r))
+        rate_cache(kernel_args, ratelaws) + (np.zeros(n), np.zeros(n))
     return (mech_arrays, kernel_args, linear, table_arrays(table, n_p), cond, work)
 
 

@@ -110,10 +110,6 @@ the model is replaced. ``work[10:16]`` = (cache scalars [T, E/N, valid], (electr
 falloff rows, reverse rows, their forward rows), kernel arguments of the electron rows,
 of the falloff rows, of all rows with unit forward rows, (k of the constant rows, k and
 dk/dn_M of the electron rows, their n_M, k, dk/dn_M and n_M of the falloff rows, 1/Kc)).
-``work[0]`` and ``work[1]`` (k and dk/dn_M with the rate multipliers) persist between
-calls: a call rewrites only the rows whose inputs changed (all of them after a change of
-temperature, the electron rows after a change of E/N, the falloff and reverse rows
-always), from the unmultiplied values kept in ``work[18]`` and ``work[19]``.
 
 Gas energy equation (``cond[8]`` = 1 isobaric, 2 isochoric)
 -----------------------------------------------------------
@@ -420,9 +416,6 @@ TEMPERATURE_STEP = 1e-7
 #: slots of ``work`` used by the energy equation (see :func:`evaluate`)
 W_ENTHALPY = 16
 W_HEAT_CAPACITY = 17
-#: the rate coefficients and dk/dn_M before the multipliers (rate cache)
-W_K_RAW = 18
-W_DK_RAW = 19
 
 
 #: kernel-argument entries that are per reaction row (``compiled.KERNEL_ARGS`` 0..5)
@@ -470,9 +463,8 @@ def clear_rate_cache(work):
 
 
 @njit(cache=True)
-def _cached_rate_coefficients(kernel_args, work, Tg, E_N_Td, mean_eV, k_el, nM, k, dk, mult):
-    """Every rate coefficient and dk/dn_M, times the rate multipliers ``mult``, through the
-    cache of the module docstring."""
+def _cached_rate_coefficients(kernel_args, work, Tg, E_N_Td, mean_eV, k_el, nM, k, dk):
+    """Every rate coefficient and dk/dn_M through the cache of the module docstring."""
     cf = work[10]
     electron, falloff, reverse, forward = work[11]
     k_const, kE, dkE, nME, kF, dkF, nMF, inv_Kc = work[15]
@@ -503,36 +495,19 @@ def _cached_rate_coefficients(kernel_args, work, Tg, E_N_Td, mean_eV, k_el, nM, 
     cf[0] = Tg
     cf[1] = E_N_Td
     cf[2] = 1.0
-    # k and dk persist between calls with the multipliers applied; only the rows whose
-    # inputs changed are rewritten (k_raw, dk_raw: the same before the multipliers)
-    k_raw = work[W_K_RAW]
-    dk_raw = work[W_DK_RAW]
-    if full:
-        for j in range(k.shape[0]):
-            k_raw[j] = k_const[j]
-            dk_raw[j] = 0.0
-            k[j] = k_const[j] * mult[j]
-            dk[j] = 0.0
-    if new_field:
-        for q in range(electron.shape[0]):
-            j = electron[q]
-            k_raw[j] = kE[q]
-            k[j] = kE[q] * mult[j]
+    for j in range(k.shape[0]):
+        k[j] = k_const[j]
+        dk[j] = 0.0
+    for q in range(electron.shape[0]):
+        k[electron[q]] = kE[q]
     for q in range(falloff.shape[0]):
-        j = falloff[q]
-        k_raw[j] = kF[q]
-        dk_raw[j] = dkF[q]
-        k[j] = kF[q] * mult[j]
-        dk[j] = dkF[q] * mult[j]
+        k[falloff[q]] = kF[q]
+        dk[falloff[q]] = dkF[q]
     for q in range(reverse.shape[0]):
         j = reverse[q]
         f = forward[q]
-        kr = k_raw[f] * inv_Kc[q]
-        dkr = dk_raw[f] * inv_Kc[q]
-        k_raw[j] = kr
-        dk_raw[j] = dkr
-        k[j] = kr * mult[j]
-        dk[j] = dkr * mult[j]
+        k[j] = k[f] * inv_Kc[q]
+        dk[j] = dk[f] * inv_Kc[q]
 
 
 @njit(cache=True)
@@ -619,7 +594,11 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode, heat=None):
     if heat is not None:
         if energy != 0:
             Tg = max(y[n_s], 1.0)
-    _cached_rate_coefficients(kernel_args, work, Tg, E_tab, mean_eV, k_el, nM, k, dk, mech[6])
+    _cached_rate_coefficients(kernel_args, work, Tg, E_tab, mean_eV, k_el, nM, k, dk)
+    mult = mech[6]
+    for j in range(k.shape[0]):
+        k[j] *= mult[j]
+        dk[j] *= mult[j]
     reaction_rates(y, mech, k, nM, r)
     if mode == RATES:
         return mean_eV, drift
