@@ -90,8 +90,7 @@ untouched (the smaller kernels take the pieces they need)::
               n_M_row (n_tb,), scalars (6,) = [S / N_D, N_D, S, P_e, heat loss, dT/dt],
               u (n_s,), c (n_s,), w (n_s,),       scratch, overwritten by every call
               cache ... (work[10:16]),            the rate-coefficient cache (below)
-              h (n_s,), c_p (n_s,),               energy-equation scratch (work[16:18])
-              k_raw (n_r,), dk_raw (n_r,))        the cache before the multipliers
+              h (n_s,), c_p (n_s,))               energy-equation scratch (work[16:18])
 
 Rate-coefficient cache
 ----------------------
