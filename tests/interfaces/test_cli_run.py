@@ -2,6 +2,7 @@
 
 import csv
 import json
+import re
 import subprocess
 import sys
 
@@ -59,6 +60,12 @@ def test_report_and_export(result_file, tmp_path, capsys):
     assert main(["report", str(result_file), "--species", "CO,O"]) == 0
     text = capsys.readouterr().out
     assert "pathways of CO" in text and "bed feed" in text
+    # first law: the deposited energy is either stored chemical enthalpy (the energy
+    # efficiency) or heat, and the two shares add up to 100 % (common practice, no source)
+    line = next(t for t in text.splitlines() if t.startswith("deposited energy ended as"))
+    stored, heat = (float(v) for v in re.findall(r"([-0-9.]+) %", line))
+    eff = float(re.search(r"energy efficiency: +([-0-9.]+) %", text).group(1))
+    assert stored == pytest.approx(eff, abs=0.01) and stored + heat == pytest.approx(100.0, abs=0.02)
     for ext in ("csv", "json", "yaml"):
         out = tmp_path / f"bed.{ext}"
         assert main(["export", str(result_file), "--bed-feed", str(out)]) == 0

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import math
 
 
 def _pct(x):
@@ -32,10 +31,11 @@ def summary_text(s):
                                              for k, v in s["energy_cost_eV_per_converted_molecule"].items()))
     lines.append("electron energy went to: " + ", ".join(
         f"{k} {_pct(v).strip()}" for k, v in s["energy_split_fraction"].items() if abs(v) > 5e-4))
-    heat = s.get("energy_to_heat_fraction", math.nan)
-    if heat == heat:
-        lines.append(f"deposited energy ended as: chemical enthalpy {_pct(s['energy_stored_fraction']).strip()}, "
-                     f"gas heating {_pct(heat).strip()}")
+    if eta == eta:
+        # first law: what the products do not store as chemical enthalpy (at the inlet
+        # temperature) was released as heat, conducted away or warming the gas
+        lines.append(f"deposited energy ended as: chemical enthalpy {_pct(eta).strip()}, "
+                     f"gas heating {_pct(1.0 - eta).strip()}")
     p = s["plasma"]
     lines.append(f"filaments: E/N {p['E_N_in_pulses_Td']:.4g} Td (breakdown {p['breakdown_E_N_Td']:.4g} Td), "
                  f"mean electron energy {p['mean_electron_energy_in_pulses_eV']:.3g} eV, electron density peak "

@@ -1134,8 +1134,9 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
             table = _check_table(rebuild_table(x), mech)
             if table is None:
                 raise ValueError("rebuild_table returned None")
-            if lmea and mean_energy_problems(table):
-                raise ValueError("rebuild_table: " + mean_energy_problems(table)[0])
+            problems = mean_energy_problems(table) if lmea else []
+            if problems:
+                raise ValueError("rebuild_table: " + problems[0])
             n_rebuilds += 1
             rebuild_times.append(float(fst[_F_T]))
             model = model[:3] + (table_arrays(table, n_p),) + model[4:]

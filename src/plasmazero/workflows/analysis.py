@@ -99,6 +99,7 @@ def summary(result):
             sel[name] = made / denom_conv if denom_conv > 0 else math.nan
         selectivity[el] = dict(sorted(sel.items(), key=lambda kv: -abs(kv[1])))
         yields[el] = dict(sorted(yl.items(), key=lambda kv: -abs(kv[1])))
+    T_t = gas_temperature_K(result)
     # energy efficiency from the enthalpy of the stream
     mech = setup.compiled
     T = setup.T_gas_K
@@ -146,8 +147,8 @@ def summary(result):
         "residence_time_s": setup.residence_time_s,
         "gas_temperature_K": setup.T_gas_K,
         "gas_temperature_mode": setup.scenario["gas_temperature"]["mode"],
-        "gas_temperature_exit_K": float(gas_temperature_K(result)[_zone_end(result, 0)]),
-        "gas_temperature_max_K": float(gas_temperature_K(result).max()),
+        "gas_temperature_exit_K": float(T_t[end]),
+        "gas_temperature_max_K": float(T_t.max()),
         "pressure_Pa": setup.scenario["feed"]["pressure_Pa"],
         "pulses": int(len(setup.pulse_starts_s)) if setup.scenario["discharge"]["mode"] == "filaments" else 0,
         "conversion": conversion,
@@ -159,11 +160,6 @@ def summary(result):
         "energy_input_J_m3": u,
         "energy_split_fraction": {k: (v / total_split if total_split else 0.0)
                                   for k, v in result.energy_split_J_m3.items()},
-        # where the energy ended: stored as chemical enthalpy of the products (at the inlet
-        # temperature) or released as heat (first law; the heat leaves through the walls
-        # or warms the gas, which the energy equation follows)
-        "energy_stored_fraction": (stored / u if u > 0 and bool(np.all(known)) else math.nan),
-        "energy_to_heat_fraction": (1.0 - stored / u if u > 0 and bool(np.all(known)) else math.nan),
         "plasma": plasma,
         "expansion_factor": float(result.expansion_factor[end]),
         "element_balance_error": max(errors) if errors else 0.0,
