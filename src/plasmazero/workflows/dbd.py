@@ -479,6 +479,8 @@ def run(setup, *, rate_multipliers=None, progress=None, max_steps=2_000_000):
         # energy still owed to the parcel up to this pulse, and the expansion expected within
         # the pulse (from the previous one): the total deposited matches u to round-off
         target = max(0.0, u_pulse * (n_done + 1) - deposited)
+        if target <= 1e-12 * u_pulse:
+            target = 0.0     # round-off of the previous pulses (zero power: no electrons)
         if setup.energy_equation:   # E = (E/N) N with the density of the heated gas
             E_V_m = setup.E_N_Td * 1e-21 * float(np.sum(y))
         scale = target / (ELEMENTARY_CHARGE_C * w * E_V_m * phi_pulse * growth_guess)
@@ -492,7 +494,7 @@ def run(setup, *, rate_multipliers=None, progress=None, max_steps=2_000_000):
             u_dep = ELEMENTARY_CHARGE_C * w * E_V_m * phi_mean * float(res.integrated_electron_density_s_m3[-1])
             if setup.energy_equation:   # the integrator's own quadrature of e n_e w E phi dt
                 u_dep = phi_pulse * float(res.electron_energy_J_m3[-1])
-            if target <= 0 or abs(u_dep - target) <= 1e-9 * setup.energy_density_J_m3:
+            if target <= 0 or u_dep <= 0 or abs(u_dep - target) <= 1e-9 * setup.energy_density_J_m3:
                 break
             scale *= target / u_dep   # the last pulse has no successor to correct it: redo it
         growth_guess = phi_mean / phi_pulse
