@@ -175,6 +175,32 @@ def test_a_step_field_is_followed_exactly():
     assert err.max() < 1.0, err.max()         # measured 0.0 (identical arithmetic)
 
 
+def test_steps_land_on_the_table_nodes_of_a_field_ramp():
+    """The coefficients are linear between the table's nodes, so their derivative jumps
+    there; in a ramp the integrator lands on each node crossing (field.node_crossings)
+    and keeps its step size across (Hairer, Norsett & Wanner 1993, section II.6: stop at
+    a known discontinuity). Accuracy of the whole pulse: the Radau test above."""
+    from plasmazero.numerics.field import node_crossings, segments
+
+    grid = systems.toy_table().E_N_Td
+    stops, E0, slope = segments(PULSE, 0.0, 1e-3, [])
+    nodes = node_crossings(stops, E0, slope, grid)
+    # the toy grid has 40 nodes from 1 to 1000 Td; 0 -> 150 Td crosses those below 150,
+    # twice (up and down), 150 itself is not a node
+    inside = grid[(grid > 0.0) & (grid < 150.0)]
+    assert nodes.size == 2 * inside.size
+    np.testing.assert_allclose(nodes[:inside.size], inside / 150.0 * 2e-9, rtol=1e-12)
+    np.testing.assert_allclose(nodes[inside.size:], 12e-9 + (150.0 - inside[::-1]) / 150.0 * 2e-9,
+                               rtol=1e-12)
+    res = _pulse(t_eval_s=None)
+    t = res.times_s
+    for tn in nodes:
+        assert np.min(np.abs(t - tn)) <= 1e-12 * tn
+    # the field seen at the landing points is the node value
+    at = np.array([np.argmin(np.abs(t - tn)) for tn in nodes[:inside.size]])
+    np.testing.assert_allclose(res.E_N_Td[at], inside, rtol=1e-9)
+
+
 def test_user_breakpoints_are_restart_times():
     bps = [1e-7, 3.3e-6]
     res = _pulse(t_eval_s=None, breakpoints_s=bps)

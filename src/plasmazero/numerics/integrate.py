@@ -125,12 +125,13 @@ from ..physics import ratelaws
 from .controller import error_norm, next_step_accepted, next_step_rejected
 from .electrons import (ElectronTable, field_for_mean_energy, interpolate_table,
                         mean_energy_problems, table_arrays)
-from .field import as_density_profile, as_field, density_segments, segments
+from .field import as_density_profile, as_field, density_segments, node_crossings, segments
 from .kinetics import (COND_ELECTRON, COND_ELECTRON_SLOPE, COND_ENERGY, COND_EXPANSION,
                        COND_HEAT_LOSS, COND_LMEA, COND_PRESCRIBED, COND_SIZE, COND_T_WALL,
                        ENERGY_ISOBARIC, ENERGY_ISOCHORIC, TEMPERATURE_STEP, JACOBIAN, JACOBIAN_SPLIT, RATES, RHS, charge_imbalance,
                        clear_rate_cache, evaluate, field_at, heat_arrays, jacobian_pattern, linear_terms,
-                       net_stoichiometry, rate_cache)
+                       left_packed, efficiency_deviations,
+                       net_stoichiometry, rate_cache, species_rows)
 from .linalg import sparse_symbolic
 from .results import (BUFFER_FULL, CAUSE_ERROR, CAUSE_NEGATIVE, CAUSE_NON_FINITE,
                       CAUSE_SINGULAR, CAUSE_TEXT, MAX_STEPS, NON_FINITE_STATE, STATUS_TEXT,
@@ -211,14 +212,15 @@ def _all_finite(v):
 
 
 @njit(cache=True)
-def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, heat, rtol, atol, opts_f, opts_i,
+def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, heat, rtol, atol, opts_f, opts_i,
          t_eval, out_t, out_y, out_R, out_L, out_cond, out_ext, out_Rp, R_cum, L_cum, cum,
          Rp_cum, clipped, partner_idx, partner_ref, heavy, charge, sp):
     """The step loop; returns a status (``results`` codes). All state lives in the arrays.
 
     ``heat``: None (fixed gas temperature; the energy-equation code is then pruned from
     this specialisation) or the scratch of ``kinetics.heat_arrays``. ``seg_ne`` (n_seg, 3): per segment [prescribed (1/0), n_e at its start, slope] of the
-    electron density; ``cum`` = [integral of S/N_D dt (ln of the expansion factor),
+    electron density; ``seg_soft`` (n_seg,) 1 where a segment starts at a node of the
+    electron table inside a field ramp (no restart: the step size carries over); ``cum`` = [integral of S/N_D dt (ln of the expansion factor),
     integral of n_e dt, integral of P_e phi dt, integral of the heat loss phi dt]; ``Rp_cum``
     the parcel integrals of the rates; ``out_ext`` (cap, 4) and ``out_Rp`` (cap, n_r) their
     outputs (expansion factor, integral of n_e, the two energy integrals).
@@ -268,6 +270,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, heat, rtol, atol,
     t = fst[_F_T]
     h = fst[_F_H]
     err_prev = fst[_F_ERR_PREV]
+    h_wanted = h
     seg = ist[_I_SEG]
     n_seg = stops.shape[0] - 1
     n_eval = t_eval.shape[0]
@@ -307,7 +310,12 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, heat, rtol, atol,
                 ist[_I_OUT] = k
             t = max(t, t_stop)
             seg += 1
-            ist[_I_RESTART] = 1
+            if seg < n_seg and seg_soft[seg] == 1:
+                # a node of the electron table: the step size carries over (its
+                # proposal before the landing shortened it, when that was larger)
+                h = max(h, h_wanted)
+            else:
+                ist[_I_RESTART] = 1
             if seg < n_seg:
                 cond[1] = stops[seg]
                 cond[2] = seg_E0[seg]
@@ -354,7 +362,11 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, heat, rtol, atol,
         # (error O(d)) left a floor 100 times higher in the field-ramp order test.
         use_fdt = cond[3] != 0.0
         if use_fdt:
+            # on the side the field moves to (the side of the step; at a table node the
+            # two sides differ), forward when a backward difference would cross zero
             dE = FIELD_DERIVATIVE_STEP * max(E_now, 1.0)
+            if cond[3] < 0.0 and E_now > 2.0 * dE:
+                dE = -dE
             for q in range(2):      # one call site (each site costs compile time)
                 fq = ftmp if q == 0 else fstage
                 evaluate(E_now + (q + 1.0) * dE, y, model, fq, J, RHS, heat)
@@ -407,6 +419,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, heat, rtol, atol,
         while True:
             landing = False
             if t + 1.01 * h >= t_stop:
+                h_wanted = h
                 h = t_stop - t
                 landing = True
             ist[_I_STEPS] += 1
@@ -761,6 +774,12 @@ def build_model(mech, T_gas_K, *, electron_table=None, loss_frequency_s=None,
                    np.ascontiguousarray(mech.efficiencies, dtype=np.float64).reshape(-1, n),
                    np.ascontiguousarray(mech.multiply_M, dtype=np.bool_),
                    rate_multiplier_array(mech, rate_multipliers))
+    if not left_packed(reactant_index):
+        # the kernels stop at a row's first pad; move the pads to the end of each row
+        reactant_index = np.ascontiguousarray(-np.sort(-reactant_index, axis=1))
+        mech_arrays = (reactant_index,) + mech_arrays[1:]
+    mech_arrays = mech_arrays + species_rows(net_index, net_coeff, n) + \
+        efficiency_deviations(mech_arrays[4])
     n_tb = mech_arrays[4].shape[0]
     linear = linear_arrays(n, loss_frequency_s, loss_products, source_m3_s)
     cond = np.zeros(COND_SIZE)
@@ -978,7 +997,6 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
     if ne_prof is not None:
         bps += list(ne_prof.times_s)
     stops, seg_E0, seg_slope = segments(prof, t0, t1, bps)
-    seg_ne = density_segments(ne_prof, stops)
 
     rtol_v = _vector(rtol, n, "rtol")
     if np.any(rtol_v <= 0.0):
@@ -994,8 +1012,6 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
     e_idx = _electron_index(mech, electron_species)
     if ne_prof is not None and e_idx < 0:
         raise ValueError("electron_density_profile needs an electron species in the mechanism")
-    if seg_ne[0, 0] != 0.0:
-        y[e_idx] = seg_ne[0, 1]      # prescribed from the start: the profile's value
     heavy = np.ones(n, dtype=np.bool_)
     if e_idx >= 0:
         heavy[e_idx] = False
@@ -1023,6 +1039,20 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
         return (np.array([species.index(s) for s in names], dtype=np.int64),
                 np.array(ref, dtype=np.float64))
 
+    # land on the table's nodes in field ramps, keeping the step size across them (the
+    # coefficients' derivative jumps there: field.node_crossings); with the local mean
+    # energy approximation the table is read at a field that is not known beforehand;
+    # fixed-step runs keep their constant step (convergence studies)
+    seg_soft = np.zeros(stops.size - 1, dtype=np.int64)
+    if table is not None and electron_energy != "local_mean_energy" and fixed_step_s is None:
+        nodes = node_crossings(stops, seg_E0, seg_slope, table.E_N_Td)
+        if nodes.size:
+            hard = stops
+            stops, seg_E0, seg_slope = segments(prof, t0, t1, bps + list(nodes))
+            seg_soft = (~np.isin(stops[:-1], hard)).astype(np.int64)
+    seg_ne = density_segments(ne_prof, stops)
+    if seg_ne[0, 0] != 0.0:
+        y[e_idx] = seg_ne[0, 1]      # prescribed from the start: the profile's value
     partner_idx, partner_ref = partners(table)
     monitor = rebuild_table is not None and partner_idx.size > 0
 
@@ -1115,7 +1145,7 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
     y_start = y[:n].copy()
 
     while True:
-        status = _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, model, heat_arrays(model), rtol_v, atol_v,
+        status = _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, heat_arrays(model), rtol_v, atol_v,
                       opts_f, opts_i, t_eval, out_t, out_y, out_R, out_L, out_cond, out_ext,
                       out_Rp, R_cum, L_cum, cum, Rp_cum, clipped, partner_idx, partner_ref,
                       heavy, charge, sp)

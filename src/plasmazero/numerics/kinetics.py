@@ -77,7 +77,13 @@ untouched (the smaller kernels take the pieces they need)::
 
     model = (mech, kernel_args, linear, table, cond, work)
     mech   = (reactant_index, net_index, net_coeff, third_body, efficiencies,
-              multiply_M, rate_multipliers)       from the arrays of CompiledMechanism
+              multiply_M, rate_multipliers,       from the arrays of CompiledMechanism
+              species_ptr, species_reaction, species_coeff,
+                                                  the net stoichiometry by species, in
+                                                  compressed rows (species_rows)
+              deviation_ptr, deviation_species, deviation_value)
+                                                  efficiencies - 1 where not 0, by
+                                                  third-body set (efficiency_deviations)
     kernel_args                                   CompiledMechanism.kernel_args
     linear = (loss_frequency_s (n_s,), loss_products (n_s, n_s), source_m3_s (n_s,))
     table  = :func:`plasmazero.numerics.electrons.table_arrays`
@@ -211,6 +217,43 @@ def net_stoichiometry(reactant_index, product_index, product_coeff):
     return index, coeff
 
 
+def species_rows(net_index, net_coeff, n_species):
+    """The net stoichiometry by species in compressed rows.
+
+    Returns ``(ptr (n_s + 1,), reaction (nnz,), coeff (nnz,))``: species i takes part in
+    reactions ``reaction[ptr[i]:ptr[i + 1]]`` with net coefficients ``coeff[...]``, so that
+    dn_i/dt from the chemistry is ``sum coeff * r[reaction]`` (reactions in increasing
+    order, as in the padded form).
+    """
+    rows, cols = np.nonzero(net_index >= 0)
+    sp = net_index[rows, cols]
+    order = np.lexsort((rows, sp))
+    ptr = np.zeros(n_species + 1, dtype=np.int64)
+    np.add.at(ptr, sp + 1, 1)
+    return (np.cumsum(ptr).astype(np.int64), np.ascontiguousarray(rows[order], dtype=np.int64),
+            np.ascontiguousarray(net_coeff[rows, cols][order], dtype=np.float64))
+
+
+def efficiency_deviations(efficiencies):
+    """The third-body efficiencies that differ from 1, by third-body set, compressed.
+
+    Returns ``(ptr (n_tb + 1,), species (nnz,), eta - 1 (nnz,))`` for the split Jacobian
+    (module docstring: the efficiency-1 part is the rank-one w 1^T).
+    """
+    dev = np.asarray(efficiencies, dtype=np.float64) - 1.0
+    rows, cols = np.nonzero(dev != 0.0)
+    ptr = np.zeros(dev.shape[0] + 1, dtype=np.int64)
+    np.add.at(ptr, rows + 1, 1)
+    return (np.cumsum(ptr).astype(np.int64), np.ascontiguousarray(cols, dtype=np.int64),
+            np.ascontiguousarray(dev[rows, cols]))
+
+
+def left_packed(index):
+    """True when every row of a -1-padded index array has its entries before its pads."""
+    valid = np.asarray(index) >= 0
+    return bool(np.all(valid[:, :-1] | ~valid[:, 1:])) if valid.shape[1] > 1 else True
+
+
 @njit(cache=True)
 def field_at(cond, t):
     """Reduced field at time ``t`` (s) on the current segment, Td (clipped at 0)."""
@@ -234,8 +277,9 @@ def reaction_rates(y, mech, k, nM, r_out):
             v *= nM[j]
         for a in range(reac.shape[1]):
             s = reac[j, a]
-            if s >= 0:
-                v *= y[s]
+            if s < 0:
+                break
+            v *= y[s]
         r_out[j] = v
 
 
@@ -296,9 +340,14 @@ def _jacobian_terms(y, mech, linear, k, dk, nM, J_out, w_out, split):
     third_body = mech[3]
     eff = mech[4]
     mult = mech[5]
+    dev_ptr = mech[10]
+    dev_species = mech[11]
+    dev_value = mech[12]
     n = linear[0].shape[0]
     n_reac = reac.shape[1]
     n_net = net.shape[1]
+    # the padded rows are filled from the left (build_model checks it): loops stop at
+    # the first -1
     for j in range(reac.shape[0]):
         base = k[j]
         if mult[j]:
@@ -307,18 +356,21 @@ def _jacobian_terms(y, mech, linear, k, dk, nM, J_out, w_out, split):
         for a in range(n_reac):
             s = reac[j, a]
             if s < 0:
-                continue
+                break
             d = base
             for c in range(n_reac):
                 q = reac[j, c]
-                if c != a and q >= 0:
+                if q < 0:
+                    break
+                if c != a:
                     d *= y[q]
             if d == 0.0:
                 continue
             for c in range(n_net):
                 q = net[j, c]
-                if q >= 0:
-                    J_out[q, s] += coef[j, c] * d
+                if q < 0:
+                    break
+                J_out[q, s] += coef[j, c] * d
         # d r / d y_s through the third-body density
         b = third_body[j]
         if b < 0:
@@ -326,8 +378,9 @@ def _jacobian_terms(y, mech, linear, k, dk, nM, J_out, w_out, split):
         P = 1.0
         for a in range(n_reac):
             s = reac[j, a]
-            if s >= 0:
-                P *= y[s]
+            if s < 0:
+                break
+            P *= y[s]
         dr_dM = dk[j] * (nM[j] if mult[j] else 1.0)
         if mult[j]:
             dr_dM += k[j]
@@ -335,19 +388,31 @@ def _jacobian_terms(y, mech, linear, k, dk, nM, J_out, w_out, split):
         if dr_dM == 0.0:
             continue
         if split:
+            # efficiency 1 goes to w 1^T; the deviations eta_s - 1 (compressed, mech[10:13])
             for c in range(n_net):
                 q = net[j, c]
-                if q >= 0:
-                    w_out[q] += coef[j, c] * dr_dM
+                if q < 0:
+                    break
+                w_out[q] += coef[j, c] * dr_dM
+            for p in range(dev_ptr[b], dev_ptr[b + 1]):
+                s = dev_species[p]
+                v = dr_dM * dev_value[p]
+                for c in range(n_net):
+                    q = net[j, c]
+                    if q < 0:
+                        break
+                    J_out[q, s] += coef[j, c] * v
+            continue
         for s in range(n):
-            e = eff[b, s] - 1.0 if split else eff[b, s]
+            e = eff[b, s]
             if e == 0.0:
                 continue
             v = dr_dM * e
             for c in range(n_net):
                 q = net[j, c]
-                if q >= 0:
-                    J_out[q, s] += coef[j, c] * v
+                if q < 0:
+                    break
+                J_out[q, s] += coef[j, c] * v
     nu = linear[0]
     Pm = linear[1]
     for i in range(n):
@@ -603,16 +668,18 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode, heat=None):
         return mean_eV, drift
     net = mech[1]
     coef = mech[2]
-    for i in range(n):
+    # chemistry by species (the stoichiometry in compressed rows, mech[7:10]): a gather,
+    # about four times faster than scattering each rate over its padded net species
+    s_ptr = mech[7]
+    s_rxn = mech[8]
+    s_coef = mech[9]
+    for i in range(n_s):
+        acc = 0.0
+        for p in range(s_ptr[i], s_ptr[i + 1]):
+            acc += s_coef[p] * r[s_rxn[p]]
+        f_out[i] = acc
+    for i in range(n_s, n):
         f_out[i] = 0.0
-    for j in range(net.shape[0]):
-        rj = r[j]
-        if rj == 0.0:
-            continue
-        for a in range(net.shape[1]):
-            s = net[j, a]
-            if s >= 0:
-                f_out[s] += coef[j, a] * rj
     e = int(cond[COND_ELECTRON])
     scal = work[6]
     # ENERGY EQUATION: heat from the chemistry (before the linear terms) and the field
