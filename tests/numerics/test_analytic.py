@@ -37,6 +37,22 @@ def test_consecutive_first_order_bateman():
     assert _tol_units(R[:, 1], C) < 3.0                                # measured 0.02
 
 
+def test_a_decayed_species_is_flushed_to_zero_not_left_subnormal():
+    """A -> B, k = 10 s^-1, with steps held at k h = 0.5 (``max_step_s``) so that A decays
+    step by step: the exact A = N0 exp(-k t) passes 1e-30 atol (the flush,
+    integrate.FLUSH_FRACTION) at t = 14.3 s and would be subnormal by t = 75 s. The
+    integrator sets it to zero instead (subnormal arithmetic is slow), and B holds all of
+    A (exact: B = N0 (1 - exp(-k t)))."""
+    mech = systems.build(("A", "B"), [("A => B", ("k", 10.0))])
+    t = np.array([1.0, 20.0, 100.0])
+    res = integrate(mech, [N0, 0.0], (0.0, 100.0), T_gas_K=300.0, t_eval_s=t,
+                    rtol=RTOL, atol_m3=ATOL, max_step_s=0.05)
+    A, B = res.densities_m3[:, 0], res.densities_m3[:, 1]
+    assert _tol_units(A[:1], N0 * np.exp(-10.0 * t[:1])) < 3.0
+    assert A[1] == 0.0 and A[2] == 0.0
+    assert _tol_units(B, N0 * (1.0 - np.exp(-10.0 * t))) < 3.0
+
+
 def test_reversible_reaction_reaches_its_equilibrium_constant():
     kf, kr = 3.0, 1.0
     mech = systems.build(("A", "B"), [("A => B", ("k", kf)), ("B => A", ("k", kr))])
