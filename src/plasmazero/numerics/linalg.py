@@ -259,7 +259,9 @@ def sparse_factor(indptr, indices, diag, val, w):
         From :func:`sparse_symbolic`.
     val : ndarray float64 (nnz,)
         Entries of the permuted matrix on the filled pattern (zeros at fill positions);
-        on return L (strict lower part, unit diagonal implied) and U.
+        on return L (strict lower part, unit diagonal implied) and U, with the
+        reciprocal of each pivot stored on the diagonal (the solves multiply instead of
+        dividing: a division costs several multiplications' time).
     w : ndarray float64 (n,)
         Work vector, zero on entry and on return.
 
@@ -289,7 +291,7 @@ def sparse_factor(indptr, indices, diag, val, w):
             a_max = r_max
         for p in range(indptr[i], diag[i]):
             k = indices[p]
-            lik = w[k] / val[diag[k]]
+            lik = w[k] * val[diag[k]]       # the diagonal of a finished row holds 1/pivot
             w[k] = lik
             if lik != 0.0:
                 for q in range(diag[k] + 1, indptr[k + 1]):
@@ -303,6 +305,7 @@ def sparse_factor(indptr, indices, diag, val, w):
         piv = val[diag[i]]
         if not (abs(piv) > PIVOT_TOLERANCE * r_max) or not (abs(piv) < np.inf):
             return i + 1
+        val[diag[i]] = 1.0 / piv
     if not (u_max <= GROWTH_LIMIT * a_max):
         return n + 1
     return 0
@@ -321,16 +324,33 @@ def sparse_solve(indptr, indices, diag, val, order, b, w):
     n = order.shape[0]
     for k in range(n):
         w[k] = b[order[k]]
+    # two partial sums per row halve the chain of dependent multiply-adds
     for i in range(n):
-        s = w[i]
-        for p in range(indptr[i], diag[i]):
-            s -= val[p] * w[indices[p]]
-        w[i] = s
+        s0 = w[i]
+        s1 = 0.0
+        lo = indptr[i]
+        hi = diag[i]
+        p = lo
+        while p + 1 < hi:
+            s0 -= val[p] * w[indices[p]]
+            s1 -= val[p + 1] * w[indices[p + 1]]
+            p += 2
+        if p < hi:
+            s0 -= val[p] * w[indices[p]]
+        w[i] = s0 + s1
     for i in range(n - 1, -1, -1):
-        s = w[i]
-        for p in range(diag[i] + 1, indptr[i + 1]):
-            s -= val[p] * w[indices[p]]
-        w[i] = s / val[diag[i]]
+        s0 = w[i]
+        s1 = 0.0
+        lo = diag[i] + 1
+        hi = indptr[i + 1]
+        p = lo
+        while p + 1 < hi:
+            s0 -= val[p] * w[indices[p]]
+            s1 -= val[p + 1] * w[indices[p + 1]]
+            p += 2
+        if p < hi:
+            s0 -= val[p] * w[indices[p]]
+        w[i] = (s0 + s1) * val[diag[i]]      # the diagonal holds 1/pivot (sparse_factor)
     for k in range(n):
         b[order[k]] = w[k]
         w[k] = 0.0
