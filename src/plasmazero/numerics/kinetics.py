@@ -108,13 +108,15 @@ density. REVERSE rows are their forward row times 1/Kc(T_gas) (detailed balance,
 :mod:`plasmazero.physics.ratelaws`). :func:`evaluate` therefore calls the rate-law kernel
 (i) for all rows, and once more with every forward row set to k = 1 to obtain 1/Kc of
 each reverse row, whenever the gas temperature changes (or the cache was cleared); (ii)
-for the electron rows alone whenever E/N changes; (iii) for the falloff rows alone at
-every call. The values are those of the kernel (same code, same inputs), so the cache
-changes no result. :func:`clear_rate_cache` must be called when the electron table of
-the model is replaced. ``work[10:16]`` = (cache scalars [T, E/N, valid], (electron rows,
+for the electron rows alone whenever E/N changes. The falloff rows keep their
+temperature-only parts (k0, k_inf, F_cent) from the last temperature change and redo
+their blend with the third-body density at every call. The values are those of the
+kernel (same code, same inputs), so the cache changes no result. :func:`clear_rate_cache`
+must be called when the electron table of the model is replaced. ``work[10:16]`` = (cache scalars [T, E/N, valid], (electron rows,
 falloff rows, reverse rows, their forward rows), kernel arguments of the electron rows,
 of the falloff rows, of all rows with unit forward rows, (k of the constant rows, k and
-dk/dn_M of the electron rows, their n_M, k, dk/dn_M and n_M of the falloff rows, 1/Kc)).
+dk/dn_M of the electron rows, their n_M, k, dk/dn_M and n_M of the falloff rows, 1/Kc,
+(k0, k_inf, log10 F_cent) of the falloff rows)).
 
 Gas energy equation (``cond[8]`` = 1 isobaric, 2 isochoric)
 -----------------------------------------------------------
@@ -177,7 +179,8 @@ import math
 import numpy as np
 from numba import njit
 
-from ..physics.ratelaws import rate_coefficients
+from ..physics.ratelaws import (FALLOFF_TROE, T_REF_K, falloff_blend, falloff_parts,
+                                rate_coefficients)
 from ..physics.thermo import cp_R, h_RT
 from ..physics.constants import BOLTZMANN_J_K as K_B, ELEMENTARY_CHARGE_C as E_CHARGE
 from .electrons import field_for_mean_energy, interpolate_table
@@ -515,7 +518,7 @@ def rate_cache(kernel_args, law_codes):
     unit[1][forward, 0:3] = (1.0, 0.0, 0.0)
     floats = (np.zeros(n_r), np.zeros(electron.size), np.zeros(electron.size),
               np.zeros(electron.size), np.zeros(falloff.size), np.zeros(falloff.size),
-              np.zeros(falloff.size), np.zeros(reverse.size))
+              np.zeros(falloff.size), np.zeros(reverse.size), np.zeros((falloff.size, 3)))
     return (np.array([math.nan, math.nan, 0.0]), (electron, falloff, reverse, forward),
             subset(electron), subset(falloff), tuple(unit), floats)
 
@@ -531,13 +534,26 @@ def _cached_rate_coefficients(kernel_args, work, Tg, E_N_Td, mean_eV, k_el, nM, 
     """Every rate coefficient and dk/dn_M through the cache of the module docstring."""
     cf = work[10]
     electron, falloff, reverse, forward = work[11]
-    k_const, kE, dkE, nME, kF, dkF, nMF, inv_Kc = work[15]
+    k_const, kE, dkE, nME, kF, dkF, nMF, inv_Kc, fparts = work[15]
     full = cf[2] == 0.0 or cf[0] != Tg
     new_field = full or not (cf[1] == E_N_Td)
+    # falloff rows: k0, k_inf and F_cent follow the temperature only; the blend with the
+    # third-body density is redone at every call (same code as the kernel's falloff law)
+    fl_args = work[13]
+    if full:
+        log_Tg = math.log(Tg / T_REF_K)
+        for q in range(falloff.shape[0]):
+            k0, kinf, lf = falloff_parts(fl_args[1], fl_args[2], q,
+                                         fl_args[0][q] == FALLOFF_TROE, Tg, log_Tg)
+            fparts[q, 0] = k0
+            fparts[q, 1] = kinf
+            fparts[q, 2] = lf
     for q in range(falloff.shape[0]):
         nMF[q] = nM[falloff[q]]
+        kF[q], dkF[q] = falloff_blend(fl_args[0][q] == FALLOFF_TROE, fparts[q, 0],
+                                      fparts[q, 1], fparts[q, 2], nMF[q])
     # one call site of the rate-law kernel (each call site is compiled separately)
-    for part in range(4):
+    for part in range(3):
         if part == 0:
             if not full:
                 continue
@@ -546,12 +562,10 @@ def _cached_rate_coefficients(kernel_args, work, Tg, E_N_Td, mean_eV, k_el, nM, 
             if not full:
                 continue
             args, n_M, k_part, dk_part = work[14], nM, k, dk              # 1/Kc
-        elif part == 2:
+        else:
             if not new_field:
                 continue
             args, n_M, k_part, dk_part = work[12], nME, kE, dkE           # electron rows
-        else:
-            args, n_M, k_part, dk_part = work[13], nMF, kF, dkF           # falloff rows
         rate_coefficients(args, Tg, Tg, E_N_Td, mean_eV, k_el, n_M, k_part, dk_part)
         if part == 1:
             for q in range(reverse.shape[0]):

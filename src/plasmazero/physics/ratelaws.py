@@ -151,14 +151,20 @@ def _arrhenius(A, b, Ea_K, T_K, log_T_rel):
 
 
 @njit(cache=True)
-def _troe_log10_F(log10_Pr, alpha, T3, T1, T2, has_T2, T_K):
-    """log10 of the Troe broadening factor and d(log10 F)/d(log10 Pr) (Gilbert et al. 1983)."""
+def troe_log10_Fcent(alpha, T3, T1, T2, has_T2, T_K):
+    """log10 of the Troe centre broadening factor F_cent(T) (Gilbert et al. 1983)."""
     Fcent = (1.0 - alpha) * math.exp(-T_K / T3) + alpha * math.exp(-T_K / T1)
     if has_T2:
         Fcent += math.exp(-T2 / T_K)
     if Fcent < 1e-300:
         Fcent = 1e-300
-    lf = math.log10(Fcent)
+    return math.log10(Fcent)
+
+
+@njit(cache=True)
+def _troe_log10_F(log10_Pr, lf):
+    """log10 of the Troe broadening factor and d(log10 F)/d(log10 Pr) (Gilbert et al.
+    1983), from lf = log10 F_cent."""
     c = -0.4 - 0.67 * lf
     n = 0.75 - 1.27 * lf
     if log10_Pr == -math.inf:
@@ -170,6 +176,46 @@ def _troe_log10_F(log10_Pr, alpha, T3, T1, T2, has_T2, T_K):
     g = 1.0 + f * f
     dfdx = n / (den * den)
     return lf / g, -lf * 2.0 * f * dfdx / (g * g)
+
+
+@njit(cache=True)
+def falloff_parts(fpar, ipar, j, troe, Tg_K, log_Tg):
+    """The temperature-only parts of falloff row ``j``: (k0, k_inf, log10 F_cent).
+
+    k0 (m^6 s^-1) and k_inf (m^3 s^-1) are modified Arrhenius forms; log10 F_cent is 0
+    for Lindemann rows. With :func:`falloff_blend` this is the kernel's falloff law; the
+    split lets a caller at a fixed temperature keep these parts and redo only the blend
+    when the third-body density changes.
+    """
+    k0 = _arrhenius(fpar[j, 0], fpar[j, 1], fpar[j, 2], Tg_K, log_Tg)
+    kinf = _arrhenius(fpar[j, 3], fpar[j, 4], fpar[j, 5], Tg_K, log_Tg)
+    lf = 0.0
+    if troe:
+        lf = troe_log10_Fcent(fpar[j, 6], fpar[j, 7], fpar[j, 8], fpar[j, 9],
+                              ipar[j, 0] == 1, Tg_K)
+    return k0, kinf, lf
+
+
+@njit(cache=True)
+def falloff_blend(troe, k0, kinf, lf, nM):
+    """Falloff rate coefficient and dk/dn_M at third-body density ``nM`` (m^-3).
+
+    Lindemann (1922): k = k_inf Pr / (1 + Pr), Pr = k0 n_M / k_inf; Troe (Gilbert, Luther
+    & Troe 1983): times the broadening factor F(Pr, F_cent).
+    """
+    if kinf <= 0.0:
+        return 0.0, 0.0
+    Pr = k0 * nM / kinf
+    if not troe:
+        return kinf * Pr / (1.0 + Pr), k0 / ((1.0 + Pr) * (1.0 + Pr))
+    log10_Pr = math.log10(Pr) if Pr > 0.0 else -math.inf
+    lF, dlF = _troe_log10_F(log10_Pr, lf)
+    F = 10.0 ** lF
+    k = kinf * Pr / (1.0 + Pr) * F
+    if Pr > 0.0:
+        # d ln k / d ln Pr = 1/(1+Pr) + d ln F / d ln Pr; Pr proportional to nM
+        return k, k * (1.0 / (1.0 + Pr) + dlF) / nM
+    return k, k0 * F
 
 
 @njit(cache=True)
@@ -233,29 +279,9 @@ def rate_coefficients(kernel_args, Tg_K, Te_K, E_N_Td, mean_energy_eV, k_electro
             else:
                 k_out[j] = 0.0
         elif code == FALLOFF_LINDEMANN or code == FALLOFF_TROE:
-            k0 = _arrhenius(fpar[j, 0], fpar[j, 1], fpar[j, 2], Tg_K, log_Tg)
-            kinf = _arrhenius(fpar[j, 3], fpar[j, 4], fpar[j, 5], Tg_K, log_Tg)
-            nM = n_M_m3[j]
-            if kinf <= 0.0:
-                k_out[j] = 0.0
-                continue
-            Pr = k0 * nM / kinf
-            if code == FALLOFF_LINDEMANN:
-                k_out[j] = kinf * Pr / (1.0 + Pr)
-                dk_dnM_out[j] = k0 / ((1.0 + Pr) * (1.0 + Pr))
-            else:
-                log10_Pr = math.log10(Pr) if Pr > 0.0 else -math.inf
-                lF, dlF = _troe_log10_F(log10_Pr, fpar[j, 6], fpar[j, 7], fpar[j, 8],
-                                        fpar[j, 9], ipar[j, 0] == 1, Tg_K)
-                F = 10.0 ** lF
-                k = kinf * Pr / (1.0 + Pr) * F
-                k_out[j] = k
-                if Pr > 0.0:
-                    # d ln k / d ln Pr = 1/(1+Pr) + d ln F / d ln Pr; Pr proportional to nM
-                    dlnk = 1.0 / (1.0 + Pr) + dlF
-                    dk_dnM_out[j] = k * dlnk / nM
-                else:
-                    dk_dnM_out[j] = k0 * F
+            troe = code == FALLOFF_TROE
+            k0, kinf, lf = falloff_parts(fpar, ipar, j, troe, Tg_K, log_Tg)
+            k_out[j], dk_dnM_out[j] = falloff_blend(troe, k0, kinf, lf, n_M_m3[j])
         elif code == LANDAU_TELLER:
             k_out[j] = fpar[j, 3] * fpar[j, 0] * math.exp(
                 -fpar[j, 1] * Tg_m13 + fpar[j, 2] * Tg_m13 * Tg_m13)
