@@ -312,6 +312,22 @@ def sparse_factor(indptr, indices, diag, val, w):
 
 
 @njit(cache=True)
+def _row_dot(val, indices, w, lo, hi):
+    """sum of val[p] w[indices[p]] over p in [lo, hi), as two partial sums (they halve
+    the chain of dependent multiply-adds of a triangular solve)."""
+    s0 = 0.0
+    s1 = 0.0
+    p = lo
+    while p + 1 < hi:
+        s0 += val[p] * w[indices[p]]
+        s1 += val[p + 1] * w[indices[p + 1]]
+        p += 2
+    if p < hi:
+        s0 += val[p] * w[indices[p]]
+    return s0 + s1
+
+
+@njit(cache=True)
 def sparse_solve(indptr, indices, diag, val, order, b, w):
     """Solve A x = b in place with the factors of :func:`sparse_factor`.
 
@@ -324,33 +340,11 @@ def sparse_solve(indptr, indices, diag, val, order, b, w):
     n = order.shape[0]
     for k in range(n):
         w[k] = b[order[k]]
-    # two partial sums per row halve the chain of dependent multiply-adds
     for i in range(n):
-        s0 = w[i]
-        s1 = 0.0
-        lo = indptr[i]
-        hi = diag[i]
-        p = lo
-        while p + 1 < hi:
-            s0 -= val[p] * w[indices[p]]
-            s1 -= val[p + 1] * w[indices[p + 1]]
-            p += 2
-        if p < hi:
-            s0 -= val[p] * w[indices[p]]
-        w[i] = s0 + s1
+        w[i] -= _row_dot(val, indices, w, indptr[i], diag[i])
     for i in range(n - 1, -1, -1):
-        s0 = w[i]
-        s1 = 0.0
-        lo = diag[i] + 1
-        hi = indptr[i + 1]
-        p = lo
-        while p + 1 < hi:
-            s0 -= val[p] * w[indices[p]]
-            s1 -= val[p + 1] * w[indices[p + 1]]
-            p += 2
-        if p < hi:
-            s0 -= val[p] * w[indices[p]]
-        w[i] = (s0 + s1) * val[diag[i]]      # the diagonal holds 1/pivot (sparse_factor)
+        # the diagonal holds 1/pivot (sparse_factor)
+        w[i] = (w[i] - _row_dot(val, indices, w, diag[i] + 1, indptr[i + 1])) * val[diag[i]]
     for k in range(n):
         b[order[k]] = w[k]
         w[k] = 0.0
