@@ -233,7 +233,8 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, heat, r
     ``heat``: None (fixed gas temperature; the energy-equation code is then pruned from
     this specialisation) or the scratch of ``kinetics.heat_arrays``. ``seg_ne`` (n_seg, 3): per segment [prescribed (1/0), n_e at its start, slope] of the
     electron density; ``seg_soft`` (n_seg,) 1 where a segment starts at a node of the
-    electron table inside a field ramp (no restart: the step size carries over); ``cum`` = [integral of S/N_D dt (ln of the expansion factor),
+    electron table inside a field ramp (no restart: the step size carries over);
+    ``cum`` = [integral of S/N_D dt (ln of the expansion factor),
     integral of n_e dt, integral of P_e phi dt, integral of the heat loss phi dt]; ``Rp_cum``
     the parcel integrals of the rates; ``out_ext`` (cap, 4) and ``out_Rp`` (cap, n_r) their
     outputs (expansion factor, integral of n_e, the two energy integrals).

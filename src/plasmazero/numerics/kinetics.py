@@ -112,7 +112,8 @@ for the electron rows alone whenever E/N changes. The falloff rows keep their
 temperature-only parts (k0, k_inf, F_cent) from the last temperature change and redo
 their blend with the third-body density at every call. The values are those of the
 kernel (same code, same inputs), so the cache changes no result. :func:`clear_rate_cache`
-must be called when the electron table of the model is replaced. ``work[10:16]`` = (cache scalars [T, E/N, valid], (electron rows,
+must be called when the electron table of the model is replaced. ``work[10:16]`` =
+(cache scalars [T, E/N, valid], (electron rows,
 falloff rows, reverse rows, their forward rows), kernel arguments of the electron rows,
 of the falloff rows, of all rows with unit forward rows, (k of the constant rows, k and
 dk/dn_M of the electron rows, their n_M, k, dk/dn_M and n_M of the falloff rows, 1/Kc,
@@ -220,6 +221,16 @@ def net_stoichiometry(reactant_index, product_index, product_coeff):
     return index, coeff
 
 
+def _compressed_rows(rows, cols, values, n_rows):
+    """Entries (rows, cols, values), sorted by row then column, as compressed rows:
+    (ptr (n_rows + 1,) int64, cols int64, values float64)."""
+    order = np.lexsort((cols, rows))
+    ptr = np.zeros(n_rows + 1, dtype=np.int64)
+    np.add.at(ptr, rows + 1, 1)
+    return (np.cumsum(ptr).astype(np.int64), np.ascontiguousarray(cols[order], dtype=np.int64),
+            np.ascontiguousarray(values[order], dtype=np.float64))
+
+
 def species_rows(net_index, net_coeff, n_species):
     """The net stoichiometry by species in compressed rows.
 
@@ -228,13 +239,9 @@ def species_rows(net_index, net_coeff, n_species):
     dn_i/dt from the chemistry is ``sum coeff * r[reaction]`` (reactions in increasing
     order, as in the padded form).
     """
-    rows, cols = np.nonzero(net_index >= 0)
-    sp = net_index[rows, cols]
-    order = np.lexsort((rows, sp))
-    ptr = np.zeros(n_species + 1, dtype=np.int64)
-    np.add.at(ptr, sp + 1, 1)
-    return (np.cumsum(ptr).astype(np.int64), np.ascontiguousarray(rows[order], dtype=np.int64),
-            np.ascontiguousarray(net_coeff[rows, cols][order], dtype=np.float64))
+    reactions, slots = np.nonzero(net_index >= 0)
+    return _compressed_rows(net_index[reactions, slots], reactions,
+                            net_coeff[reactions, slots], n_species)
 
 
 def efficiency_deviations(efficiencies):
@@ -245,10 +252,7 @@ def efficiency_deviations(efficiencies):
     """
     dev = np.asarray(efficiencies, dtype=np.float64) - 1.0
     rows, cols = np.nonzero(dev != 0.0)
-    ptr = np.zeros(dev.shape[0] + 1, dtype=np.int64)
-    np.add.at(ptr, rows + 1, 1)
-    return (np.cumsum(ptr).astype(np.int64), np.ascontiguousarray(cols, dtype=np.int64),
-            np.ascontiguousarray(dev[rows, cols]))
+    return _compressed_rows(rows, cols, dev[rows, cols], dev.shape[0])
 
 
 def left_packed(index):
