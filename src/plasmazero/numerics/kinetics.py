@@ -113,7 +113,7 @@ temperature-only parts (k0, k_inf, F_cent) from the last temperature change and 
 their blend with the third-body density at every call. The values are those of the
 kernel (same code, same inputs), so the cache changes no result. :func:`clear_rate_cache`
 must be called when the electron table of the model is replaced. ``work[10:16]`` =
-(cache scalars [T, E/N, valid], (electron rows,
+(cache scalars [T, E/N, valid, rate multipliers on (1/0)], (electron rows,
 falloff rows, reverse rows, their forward rows), kernel arguments of the electron rows,
 of the falloff rows, of all rows with unit forward rows, (k of the constant rows, k and
 dk/dn_M of the electron rows, their n_M, k, dk/dn_M and n_M of the falloff rows, 1/Kc,
@@ -523,7 +523,7 @@ def rate_cache(kernel_args, law_codes):
     floats = (np.zeros(n_r), np.zeros(electron.size), np.zeros(electron.size),
               np.zeros(electron.size), np.zeros(falloff.size), np.zeros(falloff.size),
               np.zeros(falloff.size), np.zeros(reverse.size), np.zeros((falloff.size, 3)))
-    return (np.array([math.nan, math.nan, 0.0]), (electron, falloff, reverse, forward),
+    return (np.array([math.nan, math.nan, 0.0, 1.0]), (electron, falloff, reverse, forward),
             subset(electron), subset(falloff), tuple(unit), floats)
 
 
@@ -653,11 +653,14 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode, heat=None):
     energy = 0
     if heat is not None:     # None: compiled without the energy equation (pruned)
         energy = int(cond[COND_ENERGY])
+    # third-body densities, species outer: one running sum per set (a single running sum
+    # over the species waits on each add; this order let the sets' sums overlap)
     for b in range(eff.shape[0]):
-        s_sum = 0.0
-        for s in range(n_s):
-            s_sum += eff[b, s] * y[s]
-        nM_row[b] = s_sum
+        nM_row[b] = 0.0
+    for s in range(n_s):
+        ys = y[s]
+        for b in range(eff.shape[0]):
+            nM_row[b] += eff[b, s] * ys
     for j in range(third_body.shape[0]):
         b = third_body[j]
         nM[j] = nM_row[b] if b >= 0 else 0.0
@@ -677,10 +680,11 @@ def evaluate(E_N_Td, y, model, f_out, J_out, mode, heat=None):
         if energy != 0:
             Tg = max(y[n_s], 1.0)
     _cached_rate_coefficients(kernel_args, work, Tg, E_tab, mean_eV, k_el, nM, k, dk)
-    mult = mech[6]
-    for j in range(k.shape[0]):
-        k[j] *= mult[j]
-        dk[j] *= mult[j]
+    if work[10][3] != 0.0:      # some rate multiplier differs from 1 (build_model)
+        mult = mech[6]
+        for j in range(k.shape[0]):
+            k[j] *= mult[j]
+            dk[j] *= mult[j]
     reaction_rates(y, mech, k, nM, r)
     if mode == RATES:
         return mean_eV, drift
