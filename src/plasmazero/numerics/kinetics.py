@@ -200,6 +200,11 @@ def net_stoichiometry(reactant_index, product_index, product_coeff):
     (ndarray int64 (n_r, w), ndarray float64 (n_r, w))
         Species index (-1 padded) and net coefficient (products minus reactants).
     """
+    key = (reactant_index.shape, reactant_index.tobytes(), product_index.shape,
+           product_index.tobytes(), np.asarray(product_coeff, dtype=np.float64).tobytes())
+    hit = _NET_CACHE.get(key)
+    if hit is not None:
+        return hit[0].copy(), hit[1].copy()
     n_r = reactant_index.shape[0]
     rows = []
     for j in range(n_r):
@@ -218,7 +223,15 @@ def net_stoichiometry(reactant_index, product_index, product_coeff):
         for m, (s, c) in enumerate(row):
             index[j, m] = s
             coeff[j, m] = c
+    if len(_NET_CACHE) >= 16:
+        _NET_CACHE.clear()
+    _NET_CACHE[key] = (index.copy(), coeff.copy())
     return index, coeff
+
+
+#: results of net_stoichiometry by its input arrays (the discharge workflow builds a model
+#: for every pulse and afterglow of the same mechanism)
+_NET_CACHE = {}
 
 
 def _compressed_rows(rows, cols, values, n_rows):
@@ -446,15 +459,18 @@ def jacobian_pattern(model, split=False):
     reac, net, _, third_body, eff = mech[0], mech[1], mech[2], mech[3], mech[4]
     n = linear[0].shape[0]
     pat = np.eye(n, dtype=np.bool_)
-    for j in range(reac.shape[0]):
-        rows = net[j][net[j] >= 0]
-        if rows.size == 0:
-            continue
-        cols = reac[j][reac[j] >= 0]
-        if third_body[j] >= 0:
-            base = 1.0 if split else 0.0
-            cols = np.r_[cols, np.flatnonzero(eff[third_body[j]] != base)]
-        pat[np.ix_(rows, cols)] = True
+    # (net species q, reactant s) of every reaction, all rows at once
+    q = np.broadcast_to(net[:, :, None], net.shape + (reac.shape[1],))
+    r = np.broadcast_to(reac[:, None, :], q.shape)
+    both = (q >= 0) & (r >= 0)
+    pat[q[both], r[both]] = True
+    # collision partners: q of a reaction with set b takes every s with eff[b, s] != base
+    jr, slot = np.nonzero((net >= 0) & (third_body[:, None] >= 0))
+    if jr.size and eff.shape[0]:
+        base = 1.0 if split else 0.0
+        rows_of_set = np.zeros((n, eff.shape[0]), dtype=np.int64)
+        rows_of_set[net[jr, slot], third_body[jr]] = 1
+        pat |= (rows_of_set @ (eff != base).astype(np.int64)) > 0
     nu, P = linear[0], linear[1]
     lost = nu != 0.0
     pat |= (P.T != 0.0) & lost[None, :]
