@@ -75,16 +75,18 @@ def _state(mech, x, T_K, p_Pa=P_ATM):
     return y
 
 
+@pytest.mark.parametrize("method", ["rodas4", "bdf"])
 @pytest.mark.parametrize("mode", ["isochoric", "isobaric"])
-def test_newton_cooling_of_argon(mini, mode):
+def test_newton_cooling_of_argon(mini, mode, method):
     T0, Tw = 400.0, 300.0
     y0 = _state(mini, {"Ar": 1.0}, T0)
     N0 = y0.sum()
     G = 50.0                    # W m^-3 K^-1 (invented test value)
     t = np.linspace(0.0, 0.5, 11)
     res = integrate(mini, y0, (0.0, 0.5), T_gas_K=T0, t_eval_s=t, energy_equation=mode,
-                    heat_loss_W_m3_K=G, wall_temperature_K=Tw, rtol=1e-9,
-                    constant_total_density=(mode == "isobaric"))
+                    heat_loss_W_m3_K=G, wall_temperature_K=Tw,
+                    rtol=1e-9 if method == "rodas4" else 1e-10,   # BDF: global error ~10 rtol
+                    constant_total_density=(mode == "isobaric"), method=method)
     if mode == "isochoric":
         # N (3/2 k) dT/dt = -G (T - Tw)
         ref = Tw + (T0 - Tw) * np.exp(-G * t / (N0 * 1.5 * K_B))

@@ -29,18 +29,25 @@ def co2_case():
     return mech, y0, table, field
 
 
-def test_co2_pulse_and_afterglow_against_radau(co2_case):
+# global error bound in tolerance units per method: RODAS4 measured 2.2; the BDF (a
+# multistep method: its error estimate is of its own order, no local extrapolation, so
+# its global error is a larger multiple of the tolerance) measured 47
+BOUND = {"rodas4": 20.0, "bdf": 100.0}
+
+
+@pytest.mark.parametrize("method", ["rodas4", "bdf"])
+def test_co2_pulse_and_afterglow_against_radau(co2_case, method):
     mech, y0, table, field = co2_case
     t_eval = np.r_[0.0, np.linspace(2e-9, 20e-9, 10), np.geomspace(3e-8, 1e-4, 25)]
     rtol, atol = 1e-6, 1e6
     res = integrate(mech, y0, (0.0, 1e-4), T_gas_K=300.0, field=field, electron_table=table,
-                    t_eval_s=t_eval, rtol=rtol, atol_m3=atol)
+                    t_eval_s=t_eval, rtol=rtol, atol_m3=atol, method=method)
     ref = systems.radau_reference(mech, y0, t_eval, T_gas_K=300.0, field=field, table=table,
                                   rtol=1e-10, atol=1e2)
     err = np.abs(res.densities_m3 - ref) / (atol + rtol * np.abs(ref))
     # global error in units of the requested tolerance (a one-step method's global error is
     # a small multiple of its local tolerance; common practice, no source)
-    assert err.max() < 20.0, err.max()
+    assert err.max() < BOUND[method], err.max()
     # the pulse did something: CO made, electrons multiplied above the critical field
     # (about 85 Td in CO2) and recombine in the afterglow
     i = {s: k for k, s in enumerate(mech.species)}

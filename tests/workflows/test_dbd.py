@@ -213,3 +213,20 @@ def test_energy_equation_keys_are_checked():
         _scenario("co2_splitting", gas_temperature={"mode": "energy_equation", "temperature_K": 350})
     with pytest.raises(InputError, match="gas_temperature.heat_loss_W_m3_K"):
         _scenario("co2_splitting", gas_temperature={"mode": "fixed", "heat_loss_W_m3_K": 1.0})
+
+
+def test_bdf_method_gives_the_same_discharge_result(co2_run):
+    # the same scenario integrated by the variable-order BDF (solver.method) instead of
+    # RODAS4: the two independent methods agree to the accuracy asked (rtol 1e-5 each;
+    # the BDF's global error is tens of times its rtol, so 1e-3 relative on the figures)
+    sc = _scenario("co2_splitting", **{"discharge.pulses": 8, "solver.method": "bdf"})
+    other = dbd.run(dbd.prepare(sc, example_path("co2_splitting")))
+    a, b = analysis.summary(co2_run), analysis.summary(other)
+    assert b["element_balance_error"] < 1e-8
+    for key in ("energy_deposited_J_m3", "expansion_factor"):
+        assert b[key] == pytest.approx(a[key], rel=1e-4), key
+    conv_a = a["conversion"]["CO2"]
+    conv_b = b["conversion"]["CO2"]
+    assert conv_b == pytest.approx(conv_a, rel=1e-3)
+    with pytest.raises(InputError, match="solver.method"):
+        _scenario("co2_splitting", **{"solver.method": "euler"})

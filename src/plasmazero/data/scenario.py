@@ -49,7 +49,7 @@ section "Scenario files")::
       #                                # length in a packed bed; 0 = adiabatic
     bed:
       downstream_transit_s: 0.0    # afterglow time between the discharge exit and the catalyst
-    solver: {rtol: 1.0e-5, atol_floor_m3: 1.0e6}
+    solver: {rtol: 1.0e-5, atol_floor_m3: 1.0e6}   # method: rodas4 (default) | bdf
     output: {eedf_samples: 8}      # EEDFs kept in the result: feed, afterglow, at each
                                    # rebuild of the electron table (composition), and exit
 
@@ -110,7 +110,8 @@ _SCHEMA = {
                         "wall_temperature_K": float, "thermal_conductivity_W_m_K": float,
                         "heat_loss_W_m3_K": float},
     "bed": {"downstream_transit_s": float},
-    "solver": {"rtol": float, "atol_floor_m3": float, "max_steps": int},
+    "solver": {"rtol": float, "atol_floor_m3": float, "max_steps": int,
+               "method": ("rodas4", "bdf")},
     "output": {"eedf_samples": int},
 }
 
@@ -380,6 +381,7 @@ def validate_scenario(doc, file=None):
     solver = sc.setdefault("solver", {})
     solver.setdefault("rtol", 1e-5)
     solver.setdefault("atol_floor_m3", 1e6)
+    solver.setdefault("method", "rodas4")
     if not 1e-12 <= solver["rtol"] <= 0.1:
         problems.append(format_problem(file, "solver.rtol", "must be between 1e-12 and 0.1"))
     sc.setdefault("output", {}).setdefault("eedf_samples", 8)

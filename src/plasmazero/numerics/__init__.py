@@ -6,6 +6,7 @@ Modules (one concern each)::
     kinetics     mass-action right-hand side and analytic Jacobian on the mechanism arrays
     electrons    electron coefficient tables versus E/N and their interpolation
     rosenbrock   RODAS4 coefficients, one step, dense output
+    bdf          variable-order BDF (NDF): constants, history differences, dense output
     controller   error norm and PI step-size control
     field        reduced-field and electron-density profiles and their restart segments
     integrate    the compiled step loop and the public entry point

@@ -61,6 +61,26 @@ How
   negative charge density); states whose charged densities are below the sum of their
   absolute tolerances are skipped.
 
+Choice of method (``method``)
+-----------------------------
+``"rodas4"`` (default) is the one-step method above. ``"bdf"`` is the variable-order BDF
+(NDF orders 1-5) of :mod:`plasmazero.numerics.bdf` (Shampine & Reichelt 1997), run by
+:func:`_run_bdf` with the same segments, outputs, quadrature, clipping, table monitoring
+and failure report; it restarts at order 1 at every hard segment start and after a new
+electron table, keeps its history across the soft node crossings of a field ramp, and
+keeps Jacobian and factors while its simplified Newton iteration converges. The
+integrated rates use the same two-point Gauss rule on its interpolating polynomial (of
+the step's order). Measured on the repeated filament of ``benchmarks/bench_kinetics.py``
+(shipped CO2/H2 mechanism, error 1e-5 against a tight reference): RODAS4 needs rtol
+5.6e-6 (its global error stays close to rtol: the embedded estimate is of order 3, the
+solution of order 4) and about 780 steps per filament with 7 right-hand sides and a
+Jacobian and LU each; the BDF needs rtol 1.8e-7 (its estimate is of the error of the
+solution it keeps, which accumulates to tens of times rtol) and about 2200 steps with 2.1
+right-hand sides, a Jacobian every ~200 steps and an LU every ~4, and was the faster of
+the two by a factor ~1.5 there. Take RODAS4 when the error must track rtol or with many
+restarts; the BDF on long smooth stretches (afterglows, residence times), and check
+either by halving rtol.
+
 Options for the discharge workflow
 ----------------------------------
 * ``rate_multipliers`` (n_r,): factors on the evaluated rate coefficients (and on
@@ -116,6 +136,7 @@ choice is reported in ``KineticsResult.linear_solver``.
 
 References
 ----------
+Shampine, L. F. & Reichelt, M. W. (1997), SIAM J. Sci. Comput. 18, 1 (the BDF option).
 Hairer, E. & Wanner, G. (1996), Solving Ordinary Differential Equations II, 2nd ed.,
 Springer, section IV.7 (RODAS). Hairer, E., Nørsett, S. P. & Wanner, G. (1993), Solving
 Ordinary Differential Equations I, 2nd ed., Springer, section II.4 (error norm, starting
@@ -143,12 +164,15 @@ from .kinetics import (COND_ELECTRON, COND_ELECTRON_SLOPE, COND_ENERGY, COND_EXP
                        left_packed, efficiency_deviations,
                        net_stoichiometry, rate_cache, species_rows)
 from .linalg import sparse_symbolic
-from .results import (BUFFER_FULL, CAUSE_ERROR, CAUSE_NEGATIVE, CAUSE_NON_FINITE,
+from .results import (BUFFER_FULL, CAUSE_ERROR, CAUSE_NEGATIVE, CAUSE_NEWTON, CAUSE_NON_FINITE,
                       CAUSE_SINGULAR, CAUSE_TEXT, MAX_STEPS, NON_FINITE_STATE, STATUS_TEXT,
                       STEP_TOO_SMALL, SUCCESS, TABLE_STALE, Counters, IntegrationError,
                       KineticsResult)
-from .rosenbrock import (N_STAGES, ORDER, WB_SIZE, dense_coefficients, dense_eval,
+from .rosenbrock import (GAMMA, N_STAGES, ORDER, WB_SIZE, dense_coefficients, dense_eval,
                          rodas4_factor, rodas4_finish, rodas4_stage_solve, rodas4_stage_state)
+from .bdf import ALPHA as BDF_ALPHA, ERROR_CONST as BDF_ERROR_CONST, MIN_FACTOR as BDF_MIN_FACTOR
+from .bdf import (HISTORY_ROWS, NEWTON_MAXITER, change_history, history_eval, history_scratch,
+                  order_and_factor, predict, scaled_rms, update_history)
 
 #: relative step in E/N of the finite-difference time derivative of f (about eps^(1/3))
 FIELD_DERIVATIVE_STEP = 1e-5
@@ -166,10 +190,12 @@ STEP_BUFFER = 1024
 # integer state slots of the compiled loop
 _I_SEG, _I_OUT, _I_STEPS, _I_ACC, _I_REJ, _I_RHS, _I_JAC, _I_LU, _I_QUAD = range(9)
 _I_STATUS, _I_WORST, _I_RESTART, _I_AFTER_REJ, _I_CAUSE, _I_FIRST, _I_REJ_NEG = range(9, 16)
-_N_I = 16
+# BDF: order, number of steps of one size, Jacobian valid (1/0)
+_I_ORDER, _I_EQUAL, _I_HAVE_JAC = range(16, 19)
+_N_I = 19
 # float state slots
-_F_T, _F_H, _F_ERR_PREV, _F_QN = range(4)
-_N_F = 4
+_F_T, _F_H, _F_ERR_PREV, _F_QN, _F_CLU = range(5)    # _F_CLU: BDF, c of its factors
+_N_F = 5
 # options
 _O_HMAX, _O_HFIX, _O_PTOL, _O_HFIRST, _O_QN_FLOOR = range(5)
 _O_MAX_STEPS, _O_MODE, _O_RATES, _O_MONITOR = range(4)
@@ -614,6 +640,437 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, heat, r
     return status
 
 
+@njit(cache=True)
+def _run_bdf(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, heat, rtol, atol,
+             opts_f, opts_i, t_eval, out_t, out_y, out_R, out_L, out_cond, out_ext, out_Rp,
+             R_cum, L_cum, cum, Rp_cum, clipped, partner_idx, partner_ref, heavy, charge, sp,
+             D, D_scratch, J, lu, piv, wb):
+    """The step loop of the variable-order BDF (:mod:`plasmazero.numerics.bdf`); same
+    arguments, state slots, outputs and return codes as :func:`_run`, plus the history
+    ``D`` (HISTORY_ROWS, n) and its scratch, the Jacobian ``J``, its factors ``lu``,
+    ``piv`` and the Woodbury scratch ``wb``, which persist between calls (order, count of
+    equal steps and whether J is valid in ``ist[_I_ORDER]``, ``ist[_I_EQUAL]``,
+    ``ist[_I_HAVE_JAC]``; c of the factors in ``fst[_F_CLU]``), so that a full output
+    buffer changes nothing. A hard segment start, the first call and a new
+    electron table restart it at order 1 (``ist[_I_RESTART]``); at a soft segment start
+    (a node of the electron table inside a field ramp) the history carries over.
+    """
+    n = y.shape[0]
+    n_r = R_cum.shape[0]
+    table = model[3]
+    cond = model[4]
+    work = model[5]
+    linear = model[2]
+    f = np.empty(n)
+    ftmp = np.empty(n)
+    fdt = np.zeros(n)
+    y_pred = np.empty(n)
+    ynew = np.empty(n)
+    psi = np.empty(n)
+    scale = np.empty(n)
+    dcor = np.empty(n)
+    tmp = np.empty(n)
+    yd = np.empty(n)
+    lq = np.empty(n)
+    U = np.empty((1, n))
+    wu = work[7]
+    wc = work[8]
+    ww = work[9]
+    k_el = np.empty(table[2].shape[1])
+    outs = (out_t, out_y, out_R, out_L, out_cond, out_ext, out_Rp)
+    sums = (R_cum, L_cum, cum, Rp_cum)
+    rq = np.empty(n_r)
+    gq = np.empty(2)
+    pq = np.zeros(2)
+    hq = np.zeros(2)
+    scal = work[6]
+    inv_sqrt3 = 1.0 / math.sqrt(3.0)
+    e_idx = int(cond[COND_ELECTRON])
+    expand = cond[COND_EXPANSION] != 0.0
+    energy = heat is not None and cond[COND_ENERGY] != 0.0
+    n_species = linear[0].shape[0]
+    rtol_min = rtol[0]
+    for i in range(n):
+        rtol_min = min(rtol_min, rtol[i])
+    eps = 2.220446049250313e-16
+    newton_tol = max(10.0 * eps / rtol_min, min(0.03, math.sqrt(rtol_min)))
+
+    t = fst[_F_T]
+    h = fst[_F_H]
+    order = ist[_I_ORDER]
+    n_equal = ist[_I_EQUAL]
+    h_wanted = h
+    seg = ist[_I_SEG]
+    n_seg = stops.shape[0] - 1
+    n_eval = t_eval.shape[0]
+    max_steps = opts_i[_O_MAX_STEPS]
+    step_mode = opts_i[_O_MODE] == 1
+    do_rates = opts_i[_O_RATES] == 1
+    do_quad = do_rates or expand or energy
+    jac_mode = JACOBIAN_SPLIT if sp[0][0] == 1 else JACOBIAN
+    quad_mode = RHS if (expand or energy) else RATES
+    monitor = opts_i[_O_MONITOR] == 1
+    h_max = opts_f[_O_HMAX]
+    ptol = opts_f[_O_PTOL]
+    qn_floor = opts_f[_O_QN_FLOOR]
+    status = SUCCESS
+    have_jac = ist[_I_HAVE_JAC] == 1    # J (and the split parts) valid for the history
+    c_lu = fst[_F_CLU]                  # c of the current factorisation (0: none)
+    if seg < n_seg:
+        cond[1] = stops[seg]
+        cond[2] = seg_E0[seg]
+        cond[3] = seg_slope[seg]
+        cond[COND_PRESCRIBED] = seg_ne[seg, 0]
+        cond[COND_ELECTRON_SLOPE] = seg_ne[seg, 2]
+    while True:
+        if seg >= n_seg:
+            break
+        t_stop = stops[seg + 1]
+        if t >= t_stop - 10.0 * eps * max(abs(t), abs(t_stop)):
+            if not step_mode:
+                k = ist[_I_OUT]
+                while k < n_eval and t_eval[k] <= t_stop:
+                    _store(k, t_eval[k], y, outs, sums, table, cond, k_el)
+                    k += 1
+                ist[_I_OUT] = k
+            t = max(t, t_stop)
+            seg += 1
+            if seg < n_seg and seg_soft[seg] == 1 and ist[_I_RESTART] == 0:
+                # a node of the electron table: the history carries over, with the step
+                # size proposed before the landing shortened it
+                if h_wanted > h:
+                    change_history(D, order, h_wanted / h, D_scratch)
+                    h = h_wanted
+                    n_equal = 0
+            else:
+                ist[_I_RESTART] = 1
+            if seg < n_seg:
+                cond[1] = stops[seg]
+                cond[2] = seg_E0[seg]
+                cond[3] = seg_slope[seg]
+                cond[COND_PRESCRIBED] = seg_ne[seg, 0]
+                cond[COND_ELECTRON_SLOPE] = seg_ne[seg, 2]
+                if seg_ne[seg, 0] != 0.0 and e_idx >= 0:
+                    y[e_idx] = seg_ne[seg, 1]
+            continue
+        if ist[_I_STEPS] >= max_steps:
+            status = MAX_STEPS
+            break
+        span = t_stop - t
+        if ist[_I_RESTART] == 1 or not have_jac:
+            # Jacobian at the current point (a restart, or the first step of this call)
+            for jac_pass in range(2 if ist[_I_RESTART] == 1 else 1):
+                if jac_pass == 0:
+                    for i in range(n):
+                        yd[i] = y[i]
+                    E_now = field_at(cond, t)
+                    evaluate(E_now, yd, model, f, J, jac_mode, heat)
+                    ist[_I_JAC] += 1
+                    ist[_I_RHS] += 1
+                    if heat is not None:
+                        for col in range(n_species, n):
+                            for i in range(n):
+                                tmp[i] = yd[i]
+                            dx = TEMPERATURE_STEP * max(yd[col], 1.0)
+                            tmp[col] = yd[col] + dx
+                            dx = tmp[col] - yd[col]
+                            evaluate(E_now, tmp, model, ftmp, J, RHS, heat)
+                            ist[_I_RHS] += 1
+                            for i in range(n):
+                                J[i, col] = (ftmp[i] - f[i]) / dx
+                    if not (_all_finite(f) and _all_finite(J)):
+                        break
+                else:
+                    # starting step (Hairer, Norsett & Wanner 1993, section II.4), order 1
+                    if ist[_I_FIRST] == 1 and opts_f[_O_HFIRST] > 0.0:
+                        h = min(opts_f[_O_HFIRST], span)
+                    else:
+                        d0 = _rms_scaled(y, y, atol, rtol)
+                        d1 = _rms_scaled(f, y, atol, rtol)
+                        h0 = 1e-6 * span if (d0 < 1e-5 or d1 < 1e-5) else 0.01 * d0 / d1
+                        h0 = min(h0, span)
+                        for i in range(n):
+                            tmp[i] = y[i] + h0 * f[i]
+                        evaluate(field_at(cond, t + h0), tmp, model, ftmp, J, RHS, heat)
+                        ist[_I_RHS] += 1
+                        for i in range(n):
+                            ftmp[i] -= f[i]
+                        d2 = _rms_scaled(ftmp, y, atol, rtol) / h0
+                        big = max(d1, d2)
+                        hh = max(1e-6 * span, h0 * 1e-3) if big <= 1e-15 else (0.01 / big) ** 0.5
+                        h = min(100.0 * h0, hh, span)
+                    for i in range(n):
+                        D[0, i] = y[i]
+                        D[1, i] = h * f[i]
+                    order = 1
+                    n_equal = 0
+            if not (_all_finite(f) and _all_finite(J)):
+                status = NON_FINITE_STATE
+                ist[_I_CAUSE] = CAUSE_NON_FINITE
+                for i in range(n):
+                    if not (abs(f[i]) < math.inf):
+                        ist[_I_WORST] = i
+                        break
+                break
+            have_jac = True
+            c_lu = 0.0
+            ist[_I_RESTART] = 0
+            ist[_I_FIRST] = 0
+        if h > h_max:
+            change_history(D, order, h_max / h, D_scratch)
+            h = h_max
+            n_equal = 0
+        h_min = 10.0 * eps * abs(t) + 1e-300
+        current_jac = False
+        failed = False
+        landing = False
+        err = 0.0
+        n_iter = 0
+        while True:
+            if h < h_min:
+                status = STEP_TOO_SMALL
+                failed = True
+                break
+            if ist[_I_STEPS] >= max_steps:
+                status = MAX_STEPS
+                failed = True
+                break
+            landing = False
+            if t + 1.01 * h >= t_stop:
+                h_wanted = h
+                change_history(D, order, (t_stop - t) / h, D_scratch)
+                h = t_stop - t
+                n_equal = 0
+                landing = True
+            ist[_I_STEPS] += 1
+            t_new = t_stop if landing else t + h
+            predict(D, order, atol, rtol, y_pred, psi, scale)
+            c = h / BDF_ALPHA[order]
+            converged = False
+            cause = 0
+            E_new = field_at(cond, t_new)
+            while True:
+                if c_lu != c:
+                    info = rodas4_factor(c / GAMMA, J, expand, wu, wc, ww, lu, piv, sp, wb)
+                    ist[_I_LU] += 1
+                    if info != 0:
+                        cause = CAUSE_SINGULAR
+                        ist[_I_WORST] = info - 1
+                        c_lu = 0.0
+                        break
+                    c_lu = c
+                for i in range(n):
+                    ynew[i] = y_pred[i]
+                    dcor[i] = 0.0
+                dy_old = -1.0
+                finite = True
+                for it in range(NEWTON_MAXITER):
+                    n_iter = it + 1
+                    evaluate(E_new, ynew, model, f, J, RHS, heat)
+                    ist[_I_RHS] += 1
+                    if not _all_finite(f):
+                        finite = False
+                        break
+                    inv_c = 1.0 / c
+                    for i in range(n):
+                        U[0, i] = f[i] - (psi[i] + dcor[i]) * inv_c
+                    rodas4_stage_solve(0, 1.0, U[0], fdt, False, expand, wc, lu, piv, U, sp, wb)
+                    dy = scaled_rms(U[0], scale, 1.0)
+                    rate = -1.0
+                    if dy_old >= 0.0:
+                        rate = dy / dy_old
+                    if rate >= 0.0 and (rate >= 1.0 or rate ** (NEWTON_MAXITER - it)
+                                        / (1.0 - rate) * dy > newton_tol):
+                        break
+                    for i in range(n):
+                        ynew[i] += U[0, i]
+                        dcor[i] += U[0, i]
+                    if dy == 0.0 or (rate >= 0.0 and rate / (1.0 - rate) * dy < newton_tol):
+                        converged = True
+                        break
+                    dy_old = dy
+                if converged:
+                    break
+                if not finite:
+                    cause = CAUSE_NON_FINITE
+                    break
+                if current_jac:
+                    cause = CAUSE_NEWTON
+                    break
+                # refresh the Jacobian at the predicted point and retry
+                evaluate(E_new, y_pred, model, f, J, jac_mode, heat)
+                ist[_I_JAC] += 1
+                ist[_I_RHS] += 1
+                if heat is not None:
+                    for col in range(n_species, n):
+                        for i in range(n):
+                            tmp[i] = y_pred[i]
+                        dx = TEMPERATURE_STEP * max(y_pred[col], 1.0)
+                        tmp[col] = y_pred[col] + dx
+                        dx = tmp[col] - y_pred[col]
+                        evaluate(E_new, tmp, model, ftmp, J, RHS, heat)
+                        ist[_I_RHS] += 1
+                        for i in range(n):
+                            J[i, col] = (ftmp[i] - f[i]) / dx
+                if not (_all_finite(f) and _all_finite(J)):
+                    cause = CAUSE_NON_FINITE
+                    break
+                c_lu = 0.0
+                current_jac = True
+            worst = 0
+            safety = 0.9 * (2 * NEWTON_MAXITER + 1) / (2 * NEWTON_MAXITER + n_iter)
+            if converged:
+                for i in range(n):
+                    scale[i] = atol[i] + rtol[i] * abs(ynew[i])
+                err = scaled_rms(dcor, scale, BDF_ERROR_CONST[order])
+                worst_q = 0.0
+                for i in range(n):
+                    q = abs(dcor[i]) / scale[i]
+                    if q > worst_q:
+                        worst_q = q
+                        worst = i
+                cause = CAUSE_ERROR if err > 1.0 else 0
+                most = 0.0
+                for i in range(n):
+                    q = ynew[i] + atol[i]
+                    if q < 0.0 and q / atol[i] < most:
+                        most = q / atol[i]
+                        worst = i
+                        cause = CAUSE_NEGATIVE
+            ist[_I_WORST] = worst
+            if cause == 0:
+                break
+            ist[_I_REJ] += 1
+            ist[_I_CAUSE] = cause
+            if cause == CAUSE_ERROR:
+                factor = max(BDF_MIN_FACTOR, safety * err ** (-1.0 / (order + 1)))
+            else:
+                factor = 0.5
+                if cause == CAUSE_NEGATIVE:
+                    ist[_I_REJ_NEG] += 1
+                else:
+                    c_lu = 0.0
+            change_history(D, order, factor, D_scratch)
+            h *= factor
+            n_equal = 0
+        if failed:
+            break
+        # accepted step [t, t_new]
+        h_used = h
+        update_history(D, order, dcor)
+        theta_a = 0.0
+        k = ist[_I_OUT]
+        while True:
+            is_out = (not step_mode) and k < n_eval and t_eval[k] <= t_new
+            th = 1.0
+            if is_out:
+                th = min(1.0, max(0.0, (t_eval[k] - t) / h_used))
+            if th > theta_a:
+                half = 0.5 * (th - theta_a)
+                mid = 0.5 * (th + theta_a)
+                w = half * h_used
+                for node_sign in range(2):
+                    node = mid + (2 * node_sign - 1) * half * inv_sqrt3
+                    history_eval(node, D, order, yd)
+                    if e_idx >= 0:
+                        cum[1] += w * yd[e_idx]
+                    if do_quad:
+                        evaluate(field_at(cond, t + node * h_used), yd, model, ftmp, J,
+                                 quad_mode, heat)
+                        if do_rates:
+                            r = work[3]
+                            for j in range(n_r):
+                                R_cum[j] += w * r[j]
+                            linear_terms(yd, linear, lq)
+                            for i in range(n):
+                                L_cum[i] += w * lq[i]
+                            if node_sign == 0:
+                                for j in range(n_r):
+                                    rq[j] = r[j]
+                        gq[node_sign] = scal[0]
+                        pq[node_sign] = scal[3]
+                        hq[node_sign] = scal[4]
+                if do_quad:
+                    ist[_I_QUAD] += 2
+                    p1 = 1.0
+                    p2 = 1.0
+                    if expand:
+                        d1 = mid - half * inv_sqrt3 - theta_a
+                        ds = 2.0 * half * inv_sqrt3
+                        sg = (gq[1] - gq[0]) / ds
+                        p1 = math.exp(cum[0] + h_used * (d1 * gq[0] - 0.5 * sg * d1 * d1))
+                        p2 = math.exp(cum[0] + h_used * ((d1 + ds) * gq[0]
+                                                         + 0.5 * sg * (ds * ds - d1 * d1)))
+                        if do_rates:
+                            r = work[3]
+                            for j in range(n_r):
+                                Rp_cum[j] += w * (rq[j] * p1 + r[j] * p2)
+                        cum[0] += w * (gq[0] + gq[1])
+                    if energy:
+                        cum[2] += w * (pq[0] * p1 + pq[1] * p2)
+                        cum[3] += w * (hq[0] * p1 + hq[1] * p2)
+            theta_a = th
+            if not is_out:
+                break
+            history_eval(th, D, order, yd)
+            _store(k, t_eval[k], yd, outs, sums, table, cond, k_el)
+            k += 1
+        ist[_I_OUT] = k
+        for i in range(n):
+            v = ynew[i]
+            if v < 0.0:
+                clipped[i] -= v
+                v = 0.0
+            elif v < FLUSH_FRACTION * atol[i] and i < n_species:
+                v = 0.0
+            if v != ynew[i]:
+                D[0, i] = v     # the history ends on the clipped state
+            y[i] = v
+        t = t_new
+        ist[_I_ACC] += 1
+        n_equal += 1
+        qn = charge_imbalance(y, charge, qn_floor)
+        if qn > fst[_F_QN]:
+            fst[_F_QN] = qn
+        if n_equal >= order + 1:
+            new_order, factor = order_and_factor(D, order, err, safety, scale, tmp)
+            order = new_order
+            change_history(D, order, factor, D_scratch)
+            h *= factor
+            n_equal = 0
+        if step_mode:
+            k = ist[_I_OUT]
+            _store(k, t, y, outs, sums, table, cond, k_el)
+            k += 1
+            ist[_I_OUT] = k
+            if k >= out_t.shape[0]:
+                status = BUFFER_FULL
+                break
+        if monitor:
+            total = 0.0
+            for i in range(n):
+                if heavy[i]:
+                    total += y[i]
+            if total > 0.0:
+                stale = False
+                for p in range(partner_idx.shape[0]):
+                    x = y[partner_idx[p]] / total
+                    if abs(x - partner_ref[p]) > ptol:
+                        stale = True
+                if stale:
+                    status = TABLE_STALE
+                    break
+    fst[_F_T] = t
+    fst[_F_H] = h
+    fst[_F_CLU] = c_lu
+    ist[_I_HAVE_JAC] = 1 if have_jac else 0
+    ist[_I_ORDER] = order
+    ist[_I_EQUAL] = n_equal
+    ist[_I_SEG] = seg
+    ist[_I_STATUS] = status
+    return status
+
+
 # ----------------------------------------------------------------------------- driver
 
 
@@ -734,6 +1191,9 @@ ELECTRON_ENERGY_MODELS = ("local_field", "local_mean_energy")
 #: absolute tolerance of the mean electron energy (LMEA), eV (a choice of this code)
 ATOL_MEAN_ENERGY_EV = 1e-6
 
+#: step methods of :func:`integrate`
+METHODS = ("rodas4", "bdf")
+
 #: ``energy_equation`` names and their ``cond`` codes
 ENERGY_EQUATIONS = {None: 0, "isobaric": ENERGY_ISOBARIC, "isochoric": ENERGY_ISOCHORIC}
 
@@ -817,6 +1277,8 @@ def build_model(mech, T_gas_K, *, electron_table=None, loss_frequency_s=None,
     work = (np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_r), np.zeros(n_p),
             np.zeros(n_tb), np.zeros(6), np.zeros(n), np.zeros(n), np.zeros(n)) + \
         rate_cache(kernel_args, ratelaws) + (np.zeros(n), np.zeros(n))
+    # the multiplier pass of evaluate is skipped when every factor is 1
+    work[10][3] = 0.0 if np.all(mech_arrays[6] == 1.0) else 1.0
     return (mech_arrays, kernel_args, linear, table_arrays(table, n_p), cond, work)
 
 
@@ -881,7 +1343,8 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
               electron_species=None, raise_on_failure=True, rate_multipliers=None,
               constant_total_density=False, electron_density_profile=None,
               linear_solver="auto", energy_equation=None, heat_loss_W_m3_K=0.0,
-              wall_temperature_K=None, electron_energy="local_field", mean_energy0_eV=None):
+              wall_temperature_K=None, electron_energy="local_field", mean_energy0_eV=None,
+              method="rodas4"):
     """Integrate the species balances of a compiled mechanism over ``t_span_s``.
 
     Parameters
@@ -976,6 +1439,13 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
     mean_energy0_eV : float or None
         Initial mean electron energy with "local_mean_energy", eV (default: the table's
         value at the initial field).
+    method : {"rodas4", "bdf"}
+        "rodas4" (default): the Rosenbrock method, one Jacobian and LU per step, global
+        error close to ``rtol``. "bdf": the variable-order BDF (NDF) of
+        :mod:`plasmazero.numerics.bdf`, which keeps its Jacobian over many steps and needs
+        about two right-hand sides per step: cheaper per unit of time on long smooth
+        stretches, but its global error is typically tens of times ``rtol`` (module
+        docstring, "Choice of method"). Not with ``fixed_step_s``.
 
     Returns
     -------
@@ -992,6 +1462,10 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
     ----------
     See the module docstring.
     """
+    if method not in METHODS:
+        raise ValueError(f"method must be one of {', '.join(METHODS)}, got {method!r}")
+    if method == "bdf" and fixed_step_s is not None:
+        raise ValueError("fixed_step_s is for the one-step method: use method='rodas4'")
     species = tuple(mech.species)
     n = len(species)
     n_r = len(tuple(mech.reactions))
@@ -1160,11 +1634,26 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
     fst[_F_QN] = charge_imbalance(y, charge, opts_f[_O_QN_FLOOR])
     y_start = y[:n].copy()
 
+    bdf = method == "bdf"
+    if bdf:
+        history = np.zeros((HISTORY_ROWS, n_y))
+        history_work = history_scratch(n_y)
+        bdf_J = np.zeros((n_y, n_y))
+        bdf_lu = np.zeros((n_y, n_y))
+        bdf_piv = np.zeros(n_y, dtype=np.int64)
+        bdf_wb = np.zeros(WB_SIZE)
     while True:
-        status = _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, heat_arrays(model), rtol_v, atol_v,
-                      opts_f, opts_i, t_eval, out_t, out_y, out_R, out_L, out_cond, out_ext,
-                      out_Rp, R_cum, L_cum, cum, Rp_cum, clipped, partner_idx, partner_ref,
-                      heavy, charge, sp)
+        if bdf:
+            status = _run_bdf(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model,
+                              heat_arrays(model), rtol_v, atol_v, opts_f, opts_i, t_eval, out_t,
+                              out_y, out_R, out_L, out_cond, out_ext, out_Rp, R_cum, L_cum, cum,
+                              Rp_cum, clipped, partner_idx, partner_ref, heavy, charge, sp,
+                              history, history_work, bdf_J, bdf_lu, bdf_piv, bdf_wb)
+        else:
+            status = _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model,
+                          heat_arrays(model), rtol_v, atol_v, opts_f, opts_i, t_eval, out_t,
+                          out_y, out_R, out_L, out_cond, out_ext, out_Rp, R_cum, L_cum, cum,
+                          Rp_cum, clipped, partner_idx, partner_ref, heavy, charge, sp)
         if status == BUFFER_FULL:
             grow = out_t.size
             out_t = np.concatenate([out_t, np.zeros(grow)])
@@ -1187,6 +1676,8 @@ def integrate(mech, y0_m3, t_span_s, *, T_gas_K, field=None, electron_table=None
             rebuild_times.append(float(fst[_F_T]))
             model = model[:3] + (table_arrays(table, n_p),) + model[4:]
             clear_rate_cache(model[5])
+            if bdf:
+                ist[_I_RESTART] = 1     # the coefficients jump: the history is no longer valid
             # the new table was built for x: that is the new reference
             names = [s_ for s_ in table.mole_fractions if s_ in x]
             if names:

@@ -21,6 +21,7 @@ CAUSE_ERROR = 1
 CAUSE_NEGATIVE = 2
 CAUSE_SINGULAR = 3
 CAUSE_NON_FINITE = 4
+CAUSE_NEWTON = 5
 
 STATUS_TEXT = {
     SUCCESS: "success",
@@ -34,6 +35,7 @@ CAUSE_TEXT = {
     CAUSE_NEGATIVE: "significant negative density",
     CAUSE_SINGULAR: "singular iteration matrix",
     CAUSE_NON_FINITE: "non-finite values in a stage",
+    CAUSE_NEWTON: "Newton iteration did not converge with a fresh Jacobian",
 }
 
 

@@ -427,7 +427,7 @@ def run(setup, *, rate_multipliers=None, progress=None, max_steps=2_000_000):
     common = dict(electron_table=None, loss_frequency_s=setup.loss_frequency_s,
                   loss_products=setup.loss_products, rtol=solver["rtol"], atol_m3=atol,
                   max_steps=solver.get("max_steps", max_steps), constant_total_density=True,
-                  rate_multipliers=rate_multipliers)
+                  rate_multipliers=rate_multipliers, method=solver.get("method", "rodas4"))
     if setup.energy_equation:
         common.update(energy_equation="isobaric", heat_loss_W_m3_K=setup.heat_loss_W_m3_K,
                       wall_temperature_K=setup.wall_temperature_K)
@@ -523,6 +523,7 @@ def run(setup, *, rate_multipliers=None, progress=None, max_steps=2_000_000):
         res = integrate(mech, y, (0.0, transit), T_gas_K=T_now, field=None, electron_table=table,
                         rtol=solver["rtol"], atol_m3=atol, max_steps=solver.get("max_steps", max_steps),
                         constant_total_density=True, rate_multipliers=rate_multipliers,
+                        method=common["method"],
                         **({k: common[k] for k in ("energy_equation", "heat_loss_W_m3_K",
                                                    "wall_temperature_K")}
                            if setup.energy_equation else {}))
