@@ -71,15 +71,16 @@ electron table, keeps its history across the soft node crossings of a field ramp
 keeps Jacobian and factors while its simplified Newton iteration converges. The
 integrated rates use the same two-point Gauss rule on its interpolating polynomial (of
 the step's order). Measured on the repeated filament of ``benchmarks/bench_kinetics.py``
-(shipped CO2/H2 mechanism, error 1e-5 against a tight reference): RODAS4 needs rtol
-5.6e-6 (its global error stays close to rtol: the embedded estimate is of order 3, the
-solution of order 4) and about 780 steps per filament with 7 right-hand sides and a
-Jacobian and LU each; the BDF needs rtol 1.8e-7 (its estimate is of the error of the
-solution it keeps, which accumulates to tens of times rtol) and about 2200 steps with 2.1
-right-hand sides, a Jacobian every ~200 steps and an LU every ~4, and was the faster of
-the two by a factor ~1.5 there. Take RODAS4 when the error must track rtol or with many
-restarts; the BDF on long smooth stretches (afterglows, residence times), and check
-either by halving rtol.
+(shipped CO2/H2 mechanism, 100 filaments, error 1e-5 against a tight reference): RODAS4
+needs rtol 5.6e-6 (its global error stays close to rtol: the embedded estimate is of
+order 3, the solution of order 4) and 840 steps per filament with 6.9 right-hand sides
+and a Jacobian and LU each, 12.3 s; the BDF needs rtol 1.8e-7 (its estimate is of the
+error of the solution it keeps, which accumulates to tens of times rtol) and 2130 steps
+with 2.05 right-hand sides and a Jacobian every ~270 steps, 8.8 s. With the integrated
+rates on, the BDF's two quadrature evaluations per step double its right-hand-side work
+(13.3 s); RODAS4's add about a tenth. Take RODAS4 (default) when the error must track
+rtol, with integrated rates or many restarts; the BDF on long smooth stretches
+(afterglows, residence times) without them; check either by halving rtol.
 
 Options for the discharge workflow
 ----------------------------------
