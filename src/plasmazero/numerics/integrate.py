@@ -252,6 +252,70 @@ def _all_finite(v):
 
 
 @njit(cache=True)
+def _set_segment(cond, seg, stops, seg_E0, seg_slope, seg_ne):
+    """Field and electron-density conditions of segment ``seg`` into ``cond``."""
+    cond[1] = stops[seg]
+    cond[2] = seg_E0[seg]
+    cond[3] = seg_slope[seg]
+    cond[COND_PRESCRIBED] = seg_ne[seg, 0]
+    cond[COND_ELECTRON_SLOPE] = seg_ne[seg, 2]
+
+
+@njit(cache=True)
+def _accept_state(ynew, y, clipped, atol, n_species):
+    """y = ynew with negatives clipped (booked in ``clipped``) and densities below
+    FLUSH_FRACTION atol set to zero (module docstring)."""
+    for i in range(y.shape[0]):
+        v = ynew[i]
+        if v < 0.0:
+            clipped[i] -= v
+            v = 0.0
+        elif v < FLUSH_FRACTION * atol[i] and i < n_species:
+            v = 0.0     # far below the tolerance: no subnormal numbers (docstring)
+        y[i] = v
+
+
+@njit(cache=True)
+def _table_stale(y, heavy, partner_idx, partner_ref, ptol):
+    """True when a collision partner's mole fraction drifted by more than ``ptol``."""
+    total = 0.0
+    for i in range(y.shape[0]):
+        if heavy[i]:
+            total += y[i]
+    if not total > 0.0:
+        return False
+    for p in range(partner_idx.shape[0]):
+        if abs(y[partner_idx[p]] / total - partner_ref[p]) > ptol:
+            return True
+    return False
+
+
+@njit(cache=True)
+def _parcel_quadrature(cum, gq, pq, hq, rq, r, Rp_cum, w, h, theta_a, mid, half, expand,
+                       energy, do_rates):
+    """Book the parcel integrals of one two-point Gauss interval from the node values:
+    ``gq`` S/N_D, ``pq`` electron power, ``hq`` heat loss, ``rq`` / ``r`` the rates at the
+    first / second node. ln(phi) at the nodes is the integral from ``theta_a`` of the
+    straight line through the two node values of S/N_D."""
+    inv_sqrt3 = 1.0 / math.sqrt(3.0)
+    p1 = 1.0
+    p2 = 1.0
+    if expand:
+        d1 = mid - half * inv_sqrt3 - theta_a
+        ds = 2.0 * half * inv_sqrt3
+        sg = (gq[1] - gq[0]) / ds
+        p1 = math.exp(cum[0] + h * (d1 * gq[0] - 0.5 * sg * d1 * d1))
+        p2 = math.exp(cum[0] + h * ((d1 + ds) * gq[0] + 0.5 * sg * (ds * ds - d1 * d1)))
+        if do_rates:
+            for j in range(Rp_cum.shape[0]):
+                Rp_cum[j] += w * (rq[j] * p1 + r[j] * p2)
+        cum[0] += w * (gq[0] + gq[1])
+    if energy:
+        cum[2] += w * (pq[0] * p1 + pq[1] * p2)
+        cum[3] += w * (hq[0] * p1 + hq[1] * p2)
+
+
+@njit(cache=True)
 def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, heat, rtol, atol, opts_f, opts_i,
          t_eval, out_t, out_y, out_R, out_L, out_cond, out_ext, out_Rp, R_cum, L_cum, cum,
          Rp_cum, clipped, partner_idx, partner_ref, heavy, charge, sp):
@@ -331,11 +395,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, heat, r
     eps = 2.220446049250313e-16
     status = SUCCESS
     if seg < n_seg:
-        cond[1] = stops[seg]
-        cond[2] = seg_E0[seg]
-        cond[3] = seg_slope[seg]
-        cond[COND_PRESCRIBED] = seg_ne[seg, 0]
-        cond[COND_ELECTRON_SLOPE] = seg_ne[seg, 2]
+        _set_segment(cond, seg, stops, seg_E0, seg_slope, seg_ne)
     while True:
         if seg >= n_seg:
             break
@@ -358,11 +418,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, heat, r
             else:
                 ist[_I_RESTART] = 1
             if seg < n_seg:
-                cond[1] = stops[seg]
-                cond[2] = seg_E0[seg]
-                cond[3] = seg_slope[seg]
-                cond[COND_PRESCRIBED] = seg_ne[seg, 0]
-                cond[COND_ELECTRON_SLOPE] = seg_ne[seg, 2]
+                _set_segment(cond, seg, stops, seg_E0, seg_slope, seg_ne)
                 if seg_ne[seg, 0] != 0.0 and e_idx >= 0:
                     # prescribed electron density: restart from the profile's value
                     y[e_idx] = seg_ne[seg, 1]
@@ -567,25 +623,8 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, heat, r
                         pq[node_sign] = scal[3]
                         hq[node_sign] = scal[4]
                     ist[_I_QUAD] += 2
-                    p1 = 1.0
-                    p2 = 1.0
-                    if expand:
-                        # ln(phi) at the two nodes: integral from theta_a of the
-                        # straight line through the two node values of S/N_D
-                        d1 = mid - half * inv_sqrt3 - theta_a
-                        ds = 2.0 * half * inv_sqrt3
-                        sg = (gq[1] - gq[0]) / ds
-                        p1 = math.exp(cum[0] + h * (d1 * gq[0] - 0.5 * sg * d1 * d1))
-                        p2 = math.exp(cum[0] + h * ((d1 + ds) * gq[0]
-                                                    + 0.5 * sg * (ds * ds - d1 * d1)))
-                        if do_rates:
-                            r = work[3]
-                            for j in range(n_r):
-                                Rp_cum[j] += w * (rq[j] * p1 + r[j] * p2)
-                        cum[0] += w * (gq[0] + gq[1])
-                    if energy:
-                        cum[2] += w * (pq[0] * p1 + pq[1] * p2)
-                        cum[3] += w * (hq[0] * p1 + hq[1] * p2)
+                    _parcel_quadrature(cum, gq, pq, hq, rq, work[3], Rp_cum, w, h, theta_a,
+                                       mid, half, expand, energy, do_rates)
             theta_a = th
             if not is_out:
                 break
@@ -593,14 +632,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, heat, r
             _store(k, t_eval[k], yd, outs, sums, table, cond, k_el)
             k += 1
         ist[_I_OUT] = k
-        for i in range(n):
-            v = ynew[i]
-            if v < 0.0:
-                clipped[i] -= v
-                v = 0.0
-            elif v < FLUSH_FRACTION * atol[i] and i < n_species:
-                v = 0.0     # far below the tolerance: no subnormal numbers (docstring)
-            y[i] = v
+        _accept_state(ynew, y, clipped, atol, n_species)
         h_used = h
         t = t_new
         ist[_I_ACC] += 1
@@ -619,20 +651,9 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, heat, r
             if k >= out_t.shape[0]:
                 status = BUFFER_FULL
                 break
-        if monitor:
-            total = 0.0
-            for i in range(n):
-                if heavy[i]:
-                    total += y[i]
-            if total > 0.0:
-                stale = False
-                for p in range(partner_idx.shape[0]):
-                    x = y[partner_idx[p]] / total
-                    if abs(x - partner_ref[p]) > ptol:
-                        stale = True
-                if stale:
-                    status = TABLE_STALE
-                    break
+        if monitor and _table_stale(y, heavy, partner_idx, partner_ref, ptol):
+            status = TABLE_STALE
+            break
     fst[_F_T] = t
     fst[_F_H] = h
     fst[_F_ERR_PREV] = err_prev
@@ -718,11 +739,7 @@ def _run_bdf(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, hea
     have_jac = ist[_I_HAVE_JAC] == 1    # J (and the split parts) valid for the history
     c_lu = fst[_F_CLU]                  # c of the current factorisation (0: none)
     if seg < n_seg:
-        cond[1] = stops[seg]
-        cond[2] = seg_E0[seg]
-        cond[3] = seg_slope[seg]
-        cond[COND_PRESCRIBED] = seg_ne[seg, 0]
-        cond[COND_ELECTRON_SLOPE] = seg_ne[seg, 2]
+        _set_segment(cond, seg, stops, seg_E0, seg_slope, seg_ne)
     while True:
         if seg >= n_seg:
             break
@@ -746,11 +763,7 @@ def _run_bdf(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, hea
             else:
                 ist[_I_RESTART] = 1
             if seg < n_seg:
-                cond[1] = stops[seg]
-                cond[2] = seg_E0[seg]
-                cond[3] = seg_slope[seg]
-                cond[COND_PRESCRIBED] = seg_ne[seg, 0]
-                cond[COND_ELECTRON_SLOPE] = seg_ne[seg, 2]
+                _set_segment(cond, seg, stops, seg_E0, seg_slope, seg_ne)
                 if seg_ne[seg, 0] != 0.0 and e_idx >= 0:
                     y[e_idx] = seg_ne[seg, 1]
             continue
@@ -993,23 +1006,8 @@ def _run_bdf(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, hea
                         hq[node_sign] = scal[4]
                 if do_quad:
                     ist[_I_QUAD] += 2
-                    p1 = 1.0
-                    p2 = 1.0
-                    if expand:
-                        d1 = mid - half * inv_sqrt3 - theta_a
-                        ds = 2.0 * half * inv_sqrt3
-                        sg = (gq[1] - gq[0]) / ds
-                        p1 = math.exp(cum[0] + h_used * (d1 * gq[0] - 0.5 * sg * d1 * d1))
-                        p2 = math.exp(cum[0] + h_used * ((d1 + ds) * gq[0]
-                                                         + 0.5 * sg * (ds * ds - d1 * d1)))
-                        if do_rates:
-                            r = work[3]
-                            for j in range(n_r):
-                                Rp_cum[j] += w * (rq[j] * p1 + r[j] * p2)
-                        cum[0] += w * (gq[0] + gq[1])
-                    if energy:
-                        cum[2] += w * (pq[0] * p1 + pq[1] * p2)
-                        cum[3] += w * (hq[0] * p1 + hq[1] * p2)
+                    _parcel_quadrature(cum, gq, pq, hq, rq, work[3], Rp_cum, w, h_used,
+                                       theta_a, mid, half, expand, energy, do_rates)
             theta_a = th
             if not is_out:
                 break
@@ -1017,16 +1015,10 @@ def _run_bdf(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, hea
             _store(k, t_eval[k], yd, outs, sums, table, cond, k_el)
             k += 1
         ist[_I_OUT] = k
+        _accept_state(ynew, y, clipped, atol, n_species)
         for i in range(n):
-            v = ynew[i]
-            if v < 0.0:
-                clipped[i] -= v
-                v = 0.0
-            elif v < FLUSH_FRACTION * atol[i] and i < n_species:
-                v = 0.0
-            if v != ynew[i]:
-                D[0, i] = v     # the history ends on the clipped state
-            y[i] = v
+            if y[i] != ynew[i]:
+                D[0, i] = y[i]      # the history ends on the clipped state
         t = t_new
         ist[_I_ACC] += 1
         n_equal += 1
@@ -1047,20 +1039,9 @@ def _run_bdf(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, hea
             if k >= out_t.shape[0]:
                 status = BUFFER_FULL
                 break
-        if monitor:
-            total = 0.0
-            for i in range(n):
-                if heavy[i]:
-                    total += y[i]
-            if total > 0.0:
-                stale = False
-                for p in range(partner_idx.shape[0]):
-                    x = y[partner_idx[p]] / total
-                    if abs(x - partner_ref[p]) > ptol:
-                        stale = True
-                if stale:
-                    status = TABLE_STALE
-                    break
+        if monitor and _table_stale(y, heavy, partner_idx, partner_ref, ptol):
+            status = TABLE_STALE
+            break
     fst[_F_T] = t
     fst[_F_H] = h
     fst[_F_CLU] = c_lu
