@@ -62,12 +62,13 @@ ERROR_CONST = KAPPA * GAMMA_SUM + 1.0 / np.arange(1, MAX_ORDER + 2)
 HISTORY_ROWS = MAX_ORDER + 3
 
 
+@njit(cache=True)
 def newton_tolerance(rtol):
     """Convergence tolerance of the Newton iteration (scaled norm) for a relative
     tolerance ``rtol`` (the smallest entry of an array): max(10 eps / rtol, min(0.03,
     sqrt(rtol))), as in scipy's implementation."""
-    eps = np.finfo(float).eps
-    return float(max(10.0 * eps / rtol, min(0.03, rtol ** 0.5)))
+    eps = 2.220446049250313e-16
+    return max(10.0 * eps / rtol, min(0.03, math.sqrt(rtol)))
 
 
 @njit(cache=True)
@@ -175,21 +176,16 @@ def history_eval(theta, D, order, out):
 
 
 @njit(cache=True)
-def order_and_factor(D, order, err_norm, safety, scale, tmp):
+def order_and_factor(D, order, err_norm, safety, scale):
     """New order and step factor after ``order + 1`` steps of one size: the neighbour
     order (k - 1, k, k + 1) whose error estimate allows the largest step (Shampine &
     Reichelt 1997, section 2.4). ``scale``: error weights at the new point."""
     em = math.inf
     ep = math.inf
-    n = D.shape[1]
     if order > 1:
-        for i in range(n):
-            tmp[i] = D[order, i]
-        em = scaled_rms(tmp, scale, ERROR_CONST[order - 1])
+        em = scaled_rms(D[order], scale, ERROR_CONST[order - 1])
     if order < MAX_ORDER:
-        for i in range(n):
-            tmp[i] = D[order + 2, i]
-        ep = scaled_rms(tmp, scale, ERROR_CONST[order + 1])
+        ep = scaled_rms(D[order + 2], scale, ERROR_CONST[order + 1])
     fm = em ** (-1.0 / order) if em > 0.0 else math.inf
     f0 = err_norm ** (-1.0 / (order + 1)) if err_norm > 0.0 else math.inf
     fp = ep ** (-1.0 / (order + 2)) if ep > 0.0 else math.inf

@@ -173,7 +173,7 @@ from .rosenbrock import (GAMMA, N_STAGES, ORDER, WB_SIZE, dense_coefficients, de
                          rodas4_factor, rodas4_finish, rodas4_stage_solve, rodas4_stage_state)
 from .bdf import ALPHA as BDF_ALPHA, ERROR_CONST as BDF_ERROR_CONST, MIN_FACTOR as BDF_MIN_FACTOR
 from .bdf import (HISTORY_ROWS, NEWTON_MAXITER, change_history, history_eval, history_scratch,
-                  order_and_factor, predict, scaled_rms, update_history)
+                  newton_tolerance, order_and_factor, predict, scaled_rms, update_history)
 
 #: relative step in E/N of the finite-difference time derivative of f (about eps^(1/3))
 FIELD_DERIVATIVE_STEP = 1e-5
@@ -249,6 +249,26 @@ def _all_finite(v):
         if not (abs(x) < math.inf):
             return False
     return True
+
+
+@njit(cache=True)
+def _outputs_through(t_stop, y, t_eval, ist, outs, sums, table, cond, k_el):
+    """Write the output rows of every requested time up to ``t_stop`` with the state ``y``
+    (a segment end: the state is that of ``t_stop``)."""
+    k = ist[_I_OUT]
+    while k < t_eval.shape[0] and t_eval[k] <= t_stop:
+        _store(k, t_eval[k], y, outs, sums, table, cond, k_el)
+        k += 1
+    ist[_I_OUT] = k
+
+
+@njit(cache=True)
+def _store_step(t, y, ist, outs, sums, table, cond, k_el):
+    """Every-step output: one row for the accepted state; True when the buffer is full."""
+    k = ist[_I_OUT]
+    _store(k, t, y, outs, sums, table, cond, k_el)
+    ist[_I_OUT] = k + 1
+    return k + 1 >= outs[0].shape[0]
 
 
 @njit(cache=True)
@@ -404,11 +424,7 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, heat, r
             # restart: next segment of the field profile / breakpoints (a sliver shorter
             # than 10 eps |t| before the stop is skipped: no step can resolve it)
             if not step_mode:
-                k = ist[_I_OUT]
-                while k < n_eval and t_eval[k] <= t_stop:
-                    _store(k, t_eval[k], y, outs, sums, table, cond, k_el)
-                    k += 1
-                ist[_I_OUT] = k
+                _outputs_through(t_stop, y, t_eval, ist, outs, sums, table, cond, k_el)
             t = max(t, t_stop)
             seg += 1
             if seg < n_seg and seg_soft[seg] == 1:
@@ -643,14 +659,9 @@ def _run(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, heat, r
             h = next_step_accepted(h_used, err, err_prev, ist[_I_AFTER_REJ] == 1)
             err_prev = max(err, 1e-4)
             ist[_I_AFTER_REJ] = 0
-        if step_mode:
-            k = ist[_I_OUT]
-            _store(k, t, y, outs, sums, table, cond, k_el)
-            k += 1
-            ist[_I_OUT] = k
-            if k >= out_t.shape[0]:
-                status = BUFFER_FULL
-                break
+        if step_mode and _store_step(t, y, ist, outs, sums, table, cond, k_el):
+            status = BUFFER_FULL
+            break
         if monitor and _table_stale(y, heavy, partner_idx, partner_ref, ptol):
             status = TABLE_STALE
             break
@@ -711,11 +722,8 @@ def _run_bdf(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, hea
     expand = cond[COND_EXPANSION] != 0.0
     energy = heat is not None and cond[COND_ENERGY] != 0.0
     n_species = linear[0].shape[0]
-    rtol_min = rtol[0]
-    for i in range(n):
-        rtol_min = min(rtol_min, rtol[i])
+    newton_tol = newton_tolerance(rtol.min())
     eps = 2.220446049250313e-16
-    newton_tol = max(10.0 * eps / rtol_min, min(0.03, math.sqrt(rtol_min)))
 
     t = fst[_F_T]
     h = fst[_F_H]
@@ -746,11 +754,7 @@ def _run_bdf(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, hea
         t_stop = stops[seg + 1]
         if t >= t_stop - 10.0 * eps * max(abs(t), abs(t_stop)):
             if not step_mode:
-                k = ist[_I_OUT]
-                while k < n_eval and t_eval[k] <= t_stop:
-                    _store(k, t_eval[k], y, outs, sums, table, cond, k_el)
-                    k += 1
-                ist[_I_OUT] = k
+                _outputs_through(t_stop, y, t_eval, ist, outs, sums, table, cond, k_el)
             t = max(t, t_stop)
             seg += 1
             if seg < n_seg and seg_soft[seg] == 1 and ist[_I_RESTART] == 0:
@@ -1026,19 +1030,14 @@ def _run_bdf(y, fst, ist, stops, seg_E0, seg_slope, seg_ne, seg_soft, model, hea
         if qn > fst[_F_QN]:
             fst[_F_QN] = qn
         if n_equal >= order + 1:
-            new_order, factor = order_and_factor(D, order, err, safety, scale, tmp)
+            new_order, factor = order_and_factor(D, order, err, safety, scale)
             order = new_order
             change_history(D, order, factor, D_scratch)
             h *= factor
             n_equal = 0
-        if step_mode:
-            k = ist[_I_OUT]
-            _store(k, t, y, outs, sums, table, cond, k_el)
-            k += 1
-            ist[_I_OUT] = k
-            if k >= out_t.shape[0]:
-                status = BUFFER_FULL
-                break
+        if step_mode and _store_step(t, y, ist, outs, sums, table, cond, k_el):
+            status = BUFFER_FULL
+            break
         if monitor and _table_stale(y, heavy, partner_idx, partner_ref, ptol):
             status = TABLE_STALE
             break
